@@ -1,0 +1,41 @@
+"""Error types. Everything raises these; only the CLI maps them to exit codes.
+
+InputError    -> the design file or an input file is wrong (exit 2)
+GeometryError -> the geometry could not be built or a self-check failed (exit 1)
+"""
+
+from __future__ import annotations
+
+
+class GeomgenError(Exception):
+    """Base of every error geomgen raises on purpose."""
+
+    exit_code = 1
+
+
+class InputError(GeomgenError):
+    """Bad design file, bad key or value, unreadable input file (exit code 2).
+
+    The message should read ``<file>: <key.path>: <what is allowed> (got <value>)``.
+    """
+
+    exit_code = 2
+
+    def __init__(self, message: str, *, source: str | None = None, path: str | None = None):
+        self.source = source
+        self.path = path
+        self.detail = message
+        parts = [p for p in (source, path) if p]
+        super().__init__(": ".join([*parts, message]))
+
+
+class GeometryError(GeomgenError):
+    """The CAD kernel could not build a part, or a self-check failed (exit code 1)."""
+
+    exit_code = 1
+
+    def __init__(self, message: str, *, part: str | None = None, operation: str | None = None):
+        self.part = part
+        self.operation = operation
+        prefix = " ".join(p for p in (part, operation) if p)
+        super().__init__(f"{prefix}: {message}" if prefix else message)
