@@ -1,0 +1,749 @@
+"""The design file: declaration of its keys, loading, validation, and the frozen ``Design``.
+
+A design file is YAML (read with the safe loader) describing one airplane. Every dimensional
+value carries a unit and is converted to SI here; the rest of geomgen sees only ``Design``.
+Frames: chord fractions run 0 at the leading edge to 1 at the trailing edge; spanwise positions
+are measured from the plane of symmetry (from the root for the vertical tail).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from .errors import InputError
+from .fields import (
+    AnyOf,
+    FieldError,
+    Flag,
+    ListOf,
+    Mapping,
+    Number,
+    Quantity,
+    Text,
+    between,
+    ge,
+    gt,
+)
+
+#: Design files larger than this are refused before parsing (bytes).
+MAX_DESIGN_BYTES = 1_000_000
+
+DEG = math.pi / 180.0
+
+# --- declaration of the keys --------------------------------------------------------------------
+
+_FRACTION = between(0.0, 1.0, lo_open=True, hi_open=True)
+_ANGLE_SMALL = between(-45 * DEG, 45 * DEG)
+
+
+def _span_position(what: str) -> AnyOf:
+    return AnyOf(
+        description=f"{what}: a fraction of the semi-span (0 to 1) or a length from the root",
+        options=(Number(bounds=between(0.0, 1.0)), Quantity(dimension="length", bounds=ge(0.0))),
+        summary='a fraction of the semi-span in [0, 1] or a length such as "1.2 m"',
+        tagged=True,
+    )
+
+
+_HINGE_AT = AnyOf(
+    description=(
+        "chord fraction of the hinge line (0 = leading edge, 1 = trailing edge); for a "
+        "'straight' hinge a list [inner end, outer end], or one number for a common hinge"
+    ),
+    options=(
+        Number(bounds=_FRACTION),
+        ListOf(item=Number(bounds=_FRACTION), min_items=2, max_items=2),
+    ),
+    summary="a chord fraction in (0, 1) or a list of two",
+)
+
+
+def _control(kind_word: str) -> Mapping:
+    return Mapping(
+        description=f"{kind_word}: a moving part cut free at its hinge line",
+        optional=True,
+        fields=(
+            ("span_start", _span_position("inner end")),
+            ("span_end", _span_position("outer end")),
+            (
+                "hinge",
+                Text(
+                    choices=("constant_fraction", "straight"),
+                    default="constant_fraction",
+                    description="constant_fraction: at a fixed fraction of the local chord; "
+                    "straight: a straight line between the chord fractions given at its ends",
+                ),
+            ),
+            ("hinge_at", _HINGE_AT),
+            (
+                "common_hinge",
+                Flag(
+                    default=False,
+                    description="elevator only: both halves share one straight hinge line "
+                    "perpendicular to the plane of symmetry",
+                ),
+            ),
+        ),
+    )
+
+
+_PANEL = Mapping(
+    description="one straight-tapered panel of a cranked surface, root to tip in order",
+    fields=(
+        (
+            "span_fraction",
+            Number(
+                bounds=between(0.0, 1.0, lo_open=True),
+                description="outer end of the panel, fraction of the semi-span",
+            ),
+        ),
+        (
+            "chord_ratio",
+            Number(
+                bounds=between(0.0, 2.0, lo_open=True),
+                description="chord at the panel's outer end / root chord",
+            ),
+        ),
+        (
+            "sweep",
+            Quantity(
+                dimension="angle",
+                bounds=between(-60 * DEG, 60 * DEG),
+                default="0 deg",
+                description="panel sweep at sweep_at",
+            ),
+        ),
+        (
+            "sweep_at",
+            Number(
+                bounds=between(0.0, 1.0),
+                optional=True,
+                description="chord fraction the panel sweep refers to (default: the surface's)",
+            ),
+        ),
+        (
+            "dihedral",
+            Quantity(
+                dimension="angle",
+                bounds=_ANGLE_SMALL,
+                optional=True,
+                description="panel dihedral (default: the surface's)",
+            ),
+        ),
+        (
+            "twist",
+            Quantity(
+                dimension="angle",
+                bounds=_ANGLE_SMALL,
+                optional=True,
+                description="twist at the panel's outer end relative to the root "
+                "(default: linear in span up to the surface's twist)",
+            ),
+        ),
+        ("airfoil", Text(optional=True, description="section at the panel's outer end")),
+    ),
+)
+
+
+def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, ...]) -> Mapping:
+    planform: list[tuple[str, Any]] = []
+    if tail:
+        planform += [
+            (
+                "volume_coefficient",
+                Number(
+                    bounds=between(0.0, 3.0, lo_open=True), description="tail volume coefficient"
+                ),
+            ),
+            (
+                "tail_arm",
+                AnyOf(
+                    options=(
+                        Quantity(dimension="length", bounds=gt(0.0)),
+                        Text(choices=("optimum",)),
+                    ),
+                    description="distance from the wing's MGC quarter-chord point to this "
+                    "tail's MGC quarter-chord point, or 'optimum' for the minimum-wetted-area "
+                    "arm (needs tail_cone)",
+                    summary='a length such as "4.2 m" or the word optimum',
+                ),
+            ),
+        ]
+    else:
+        planform += [
+            (
+                "area",
+                AnyOf(
+                    options=(
+                        Quantity(dimension="area", bounds=gt(0.0)),
+                        Text(choices=("from_stall",)),
+                    ),
+                    description="reference area, or 'from_stall' to size it from the "
+                    "requirements with the lift equation",
+                    summary='an area such as "12.5 m^2" or the word from_stall',
+                ),
+            ),
+        ]
+    planform += [
+        (
+            "aspect_ratio",
+            Number(
+                bounds=between(0.0, 40.0, lo_open=True),
+                description="b^2/S (for the one-sided vertical tail h^2/S)",
+            ),
+        ),
+        (
+            "taper_ratio",
+            Number(
+                bounds=between(0.0, 1.5, lo_open=True),
+                optional=True,
+                description="tip chord / root chord (trapezoidal planform; "
+                "leave out when panels are given)",
+            ),
+        ),
+        (
+            "sweep",
+            Quantity(
+                dimension="angle",
+                bounds=between(-60 * DEG, 60 * DEG),
+                default="0 deg",
+                description="sweep angle at sweep_at",
+            ),
+        ),
+        (
+            "sweep_at",
+            Number(
+                bounds=between(0.0, 1.0),
+                default=0.25,
+                description="chord fraction the sweep refers to",
+            ),
+        ),
+    ]
+    if not fin:
+        planform += [
+            (
+                "dihedral",
+                Quantity(
+                    dimension="angle",
+                    bounds=_ANGLE_SMALL,
+                    default="0 deg",
+                    description="dihedral angle",
+                ),
+            ),
+        ]
+    planform += [
+        (
+            "incidence",
+            Quantity(
+                dimension="angle",
+                bounds=between(-20 * DEG, 20 * DEG),
+                default="0 deg",
+                description="root incidence, nose up positive",
+            ),
+        ),
+        (
+            "twist",
+            Quantity(
+                dimension="angle",
+                bounds=_ANGLE_SMALL,
+                default="0 deg",
+                description="tip incidence minus root incidence (washout negative)",
+            ),
+        ),
+        (
+            "twist_axis",
+            Number(
+                bounds=between(0.0, 1.0),
+                default=0.25,
+                description="chord fraction the sections are turned about",
+            ),
+        ),
+        ("root_airfoil", Text(description="root section: NACA 4/5-digit name or a file name")),
+        ("tip_airfoil", Text(optional=True, description="tip section (default: root's)")),
+        (
+            "apex",
+            Mapping(
+                description="position of the root leading edge in the aircraft frame",
+                fields=(
+                    *(
+                        ()
+                        if tail
+                        else (
+                            (
+                                "x",
+                                Quantity(
+                                    dimension="length", description="fuselage station (x aft)"
+                                ),
+                            ),
+                        )
+                    ),
+                    (
+                        "z",
+                        Quantity(
+                            dimension="length", default="0 m", description="water line (z up)"
+                        ),
+                    ),
+                ),
+            ),
+        ),
+        (
+            "panels",
+            ListOf(
+                item=_PANEL,
+                min_items=1,
+                max_items=20,
+                optional=True,
+                description="panels of a cranked planform, root to tip",
+            ),
+        ),
+        (
+            "controls",
+            Mapping(
+                optional=True,
+                description="control surfaces on this surface",
+                fields=tuple((c, _control(c)) for c in controls),
+            ),
+        ),
+    ]
+    return Mapping(description=which, optional=tail, fields=tuple(planform))
+
+
+DESIGN = Mapping(
+    description="one airplane for geomgen",
+    fields=(
+        (
+            "name",
+            Text(
+                max_length=60,
+                pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]*$",
+                description="short name; used as the output folder name",
+            ),
+        ),
+        ("title", Text(optional=True, description="longer title for reports")),
+        (
+            "date",
+            Text(
+                optional=True,
+                pattern=r"^\d{4}-\d{2}-\d{2}$",
+                description="design date YYYY-MM-DD, printed on reports",
+            ),
+        ),
+        (
+            "units",
+            Text(
+                choices=("si", "imperial"),
+                default="si",
+                description="unit system of human-readable outputs",
+            ),
+        ),
+        (
+            "requirements",
+            Mapping(
+                description="what the sizing starts from",
+                fields=(
+                    (
+                        "gross_weight",
+                        Quantity(
+                            dimension="weight",
+                            bounds=gt(0.0),
+                            description="design gross weight, as a mass or a force",
+                        ),
+                    ),
+                    (
+                        "stall_speed",
+                        Quantity(
+                            dimension="speed",
+                            bounds=gt(0.0),
+                            description="stall speed (true airspeed)",
+                        ),
+                    ),
+                    (
+                        "altitude",
+                        Quantity(
+                            dimension="length",
+                            bounds=between(0.0, 20000.0),
+                            default="0 m",
+                            description="altitude of the stall requirement, 0 to 20 km",
+                        ),
+                    ),
+                    (
+                        "altitude_kind",
+                        Text(
+                            choices=("geometric", "geopotential"),
+                            default="geometric",
+                            description="how altitude is measured",
+                        ),
+                    ),
+                    (
+                        "cl_max",
+                        Number(
+                            bounds=between(0.0, 5.0, lo_open=True),
+                            description="maximum lift coefficient of the airplane",
+                        ),
+                    ),
+                ),
+            ),
+        ),
+        ("wing", _surface("main wing", tail=False, controls=("aileron", "flap"))),
+        ("horizontal_tail", _surface("horizontal tail", tail=True, controls=("elevator",))),
+        (
+            "vertical_tail",
+            _surface("vertical tail, one-sided", tail=True, fin=True, controls=("rudder",)),
+        ),
+        (
+            "tail_cone",
+            Mapping(
+                optional=True,
+                description="tail-cone radii for the minimum-wetted-area tail arm",
+                fields=(
+                    ("front_radius", Quantity(dimension="length", bounds=gt(0.0))),
+                    ("rear_radius", Quantity(dimension="length", bounds=ge(0.0))),
+                ),
+            ),
+        ),
+    ),
+)
+
+
+def json_schema() -> dict[str, Any]:
+    """The JSON Schema (draft 2020-12) of a design file, generated from the declaration."""
+    body = DESIGN.schema()
+    return {
+        "$schema": "https://json-schema.org/draft/2020-12/schema",
+        "title": "geomgen design file",
+        **body,
+    }
+
+
+# --- the frozen result --------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Requirements:
+    gross_weight: float  # N
+    stall_speed: float  # m/s (true airspeed)
+    altitude: float  # m, of kind altitude_kind
+    altitude_kind: str  # "geometric" | "geopotential"
+    cl_max: float
+
+
+@dataclass(frozen=True)
+class PanelSpec:
+    """A panel as written in the design (outer end values)."""
+
+    span_fraction: float
+    chord_ratio: float
+    sweep: float  # rad, at sweep_at
+    sweep_at: float
+    dihedral: float  # rad
+    twist: float | None  # rad at the outer end, relative to the root; None = linear
+    airfoil: str | None
+
+
+@dataclass(frozen=True)
+class ControlSpec:
+    """A control surface as written; span positions are semi-span fractions or lengths (m)."""
+
+    kind: str  # aileron | flap | elevator | rudder
+    span_start: float
+    span_end: float
+    span_start_is_fraction: bool
+    span_end_is_fraction: bool
+    hinge: str  # constant_fraction | straight
+    hinge_at: tuple[float, float]  # chord fraction at the inner and outer end
+    common_hinge: bool
+
+
+@dataclass(frozen=True)
+class SurfaceSpec:
+    """One lifting surface as written in the design (SI units, angles in rad)."""
+
+    key: str  # wing | horizontal_tail | vertical_tail
+    area: float | None  # m^2, None = from the stall requirement (wing) or volume coefficient
+    volume_coefficient: float | None
+    tail_arm: float | None  # m, None = optimum
+    aspect_ratio: float
+    taper_ratio: float | None
+    sweep: float
+    sweep_at: float
+    dihedral: float
+    incidence: float
+    twist: float
+    twist_axis: float
+    root_airfoil: str
+    tip_airfoil: str
+    apex_x: float | None
+    apex_z: float
+    panels: tuple[PanelSpec, ...]
+    controls: tuple[ControlSpec, ...]
+
+    @property
+    def symmetric(self) -> bool:
+        """True for surfaces with a left and a right half (everything but the fin)."""
+        return self.key != "vertical_tail"
+
+
+@dataclass(frozen=True)
+class Design:
+    name: str
+    title: str
+    date: str | None
+    units: str
+    requirements: Requirements
+    wing: SurfaceSpec
+    horizontal_tail: SurfaceSpec | None
+    vertical_tail: SurfaceSpec | None
+    tail_cone_radii: tuple[float, float] | None  # m (front, rear)
+    source: str  # file the design came from, for messages
+
+    @property
+    def surfaces(self) -> tuple[SurfaceSpec, ...]:
+        return tuple(s for s in (self.wing, self.horizontal_tail, self.vertical_tail) if s)
+
+
+# --- loading ------------------------------------------------------------------------------------
+
+
+def load(path: str | Path) -> Design:
+    """Read, validate and convert a design file. Raises InputError with a one-line message."""
+    path = Path(path)
+    source = str(path)
+    try:
+        size = path.stat().st_size
+    except OSError as err:
+        raise InputError(f"cannot read the design file ({err.strerror})", source=source) from None
+    if not path.is_file():
+        raise InputError("is not a file", source=source)
+    if size > MAX_DESIGN_BYTES:
+        raise InputError(
+            f"design file is {size} bytes; at most {MAX_DESIGN_BYTES} are accepted", source=source
+        )
+    try:
+        text = path.read_text(encoding="utf-8")
+    except UnicodeDecodeError:
+        raise InputError("is not UTF-8 text; a design file is YAML", source=source) from None
+    except OSError as err:
+        raise InputError(f"cannot read the design file ({err.strerror})", source=source) from None
+    return loads(text, source=source)
+
+
+def loads(text: str, source: str = "<design>") -> Design:
+    """Validate and convert design text (YAML). See :func:`load`."""
+    import yaml
+
+    try:
+        document = yaml.safe_load(text)
+    except yaml.YAMLError as err:
+        mark = getattr(err, "problem_mark", None)
+        where = f"line {mark.line + 1}, column {mark.column + 1}: " if mark else ""
+        problem = getattr(err, "problem", None) or "not valid YAML"
+        raise InputError(f"{where}malformed YAML ({problem})", source=source) from None
+    return from_mapping(document, source=source)
+
+
+def from_mapping(document: Any, source: str = "<design>") -> Design:
+    """Validate a parsed document with the JSON Schema, convert it, check combinations."""
+    if not isinstance(document, dict):
+        raise InputError(
+            f"a design file must be a mapping of keys (got {type(document).__name__})",
+            source=source,
+        )
+    _validate_structure(document, source)
+    try:
+        raw = DESIGN.parse(document, "")
+    except FieldError as err:
+        raise InputError(err.message, source=source, path=err.path) from None
+    design = _build(raw, source)
+    needs_cone = [s.key for s in design.surfaces if s.volume_coefficient and s.tail_arm is None]
+    if needs_cone and design.tail_cone_radii is None:
+        raise InputError(
+            "missing required key: tail_arm 'optimum' needs front_radius and rear_radius",
+            source=source,
+            path="tail_cone",
+        )
+    return design
+
+
+def _validate_structure(document: dict[str, Any], source: str) -> None:
+    """Validate with the jsonschema library; report the first error in our own words."""
+    import jsonschema
+
+    validator = jsonschema.Draft202012Validator(json_schema())
+    error = jsonschema.exceptions.best_match(validator.iter_errors(_plain(document)))
+    if error is None:
+        return
+    # The declaration gives the clearer message for the same fault: let it speak first.
+    try:
+        DESIGN.parse(document, "")
+    except FieldError as err:
+        raise InputError(err.message, source=source, path=err.path) from None
+    path = ".".join(str(p) for p in error.absolute_path)
+    raise InputError(error.message.splitlines()[0][:200], source=source, path=path or None)
+
+
+def _plain(value: Any) -> Any:
+    """YAML may give dates and other types; make a JSON-like copy for the schema check."""
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_plain(v) for v in value]
+    if value is None or isinstance(value, (str, int, float, bool)):
+        return value
+    return json.loads(json.dumps(value, default=str))
+
+
+def _build(raw: dict[str, Any], source: str) -> Design:
+    req = raw["requirements"]
+    requirements = Requirements(
+        gross_weight=req["gross_weight"],
+        stall_speed=req["stall_speed"],
+        altitude=req["altitude"],
+        altitude_kind=req["altitude_kind"],
+        cl_max=req["cl_max"],
+    )
+    cone = raw["tail_cone"]
+    return Design(
+        name=raw["name"],
+        title=raw["title"] or raw["name"],
+        date=raw["date"],
+        units=raw["units"],
+        requirements=requirements,
+        wing=_surface_spec("wing", raw["wing"], source),
+        horizontal_tail=_surface_spec("horizontal_tail", raw["horizontal_tail"], source),
+        vertical_tail=_surface_spec("vertical_tail", raw["vertical_tail"], source),
+        tail_cone_radii=(cone["front_radius"], cone["rear_radius"]) if cone else None,
+        source=source,
+    )
+
+
+def _surface_spec(key: str, raw: dict[str, Any] | None, source: str) -> SurfaceSpec | None:
+    if raw is None:
+        return None
+    area = raw.get("area")
+    tail_arm = raw.get("tail_arm")
+    dihedral = raw.get("dihedral") or 0.0
+    panels = tuple(
+        PanelSpec(
+            span_fraction=p["span_fraction"],
+            chord_ratio=p["chord_ratio"],
+            sweep=p["sweep"],
+            sweep_at=raw["sweep_at"] if p["sweep_at"] is None else p["sweep_at"],
+            dihedral=dihedral if p["dihedral"] is None else p["dihedral"],
+            twist=p["twist"],
+            airfoil=p["airfoil"],
+        )
+        for p in (raw["panels"] or ())
+    )
+    controls = tuple(
+        _control_spec(key, kind, c, source)
+        for kind, c in (raw["controls"] or {}).items()
+        if c is not None
+    )
+    _check_planform_keys(key, raw, panels, source)
+    return SurfaceSpec(
+        key=key,
+        area=area if isinstance(area, float) else None,
+        volume_coefficient=raw.get("volume_coefficient"),
+        tail_arm=tail_arm if isinstance(tail_arm, float) else None,
+        aspect_ratio=raw["aspect_ratio"],
+        taper_ratio=raw["taper_ratio"],
+        sweep=raw["sweep"],
+        sweep_at=raw["sweep_at"],
+        dihedral=dihedral,
+        incidence=raw["incidence"],
+        twist=raw["twist"],
+        twist_axis=raw["twist_axis"],
+        root_airfoil=raw["root_airfoil"],
+        tip_airfoil=raw["tip_airfoil"] or raw["root_airfoil"],
+        apex_x=raw["apex"].get("x"),
+        apex_z=raw["apex"]["z"],
+        panels=panels,
+        controls=controls,
+    )
+
+
+def _check_planform_keys(key: str, raw: dict[str, Any], panels: tuple, source: str) -> None:
+    """A planform is either trapezoidal (taper_ratio) or made of panels, not both."""
+    if raw["taper_ratio"] is not None and panels:
+        raise InputError(
+            "give taper_ratio for a trapezoidal planform or panels for a cranked one, not both",
+            source=source,
+            path=f"{key}.taper_ratio",
+        )
+    if raw["taper_ratio"] is None and not panels:
+        raise InputError(
+            "missing required key: taper_ratio (or a list of panels)",
+            source=source,
+            path=f"{key}.taper_ratio",
+        )
+    previous = 0.0
+    for i, panel in enumerate(panels):
+        if panel.span_fraction <= previous:
+            raise InputError(
+                f"must be greater than the previous panel's ({previous:g}); panels run root "
+                f"to tip (got {panel.span_fraction:g})",
+                source=source,
+                path=f"{key}.panels[{i}].span_fraction",
+            )
+        previous = panel.span_fraction
+    if panels and panels[-1].span_fraction != 1.0:
+        raise InputError(
+            f"the last panel must end at the tip: span_fraction 1 "
+            f"(got {panels[-1].span_fraction:g})",
+            source=source,
+            path=f"{key}.panels[{len(panels) - 1}].span_fraction",
+        )
+
+
+def _control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> ControlSpec:
+    path = f"{surface}.controls.{kind}"
+    hinge_at = c["hinge_at"]
+    is_pair = isinstance(hinge_at, list)
+    if c["hinge"] == "constant_fraction" and is_pair:
+        raise InputError(
+            "a constant_fraction hinge takes one chord fraction; a list [inner, outer] needs "
+            "hinge: straight",
+            source=source,
+            path=f"{path}.hinge_at",
+        )
+    if c["common_hinge"]:
+        if kind != "elevator":
+            raise InputError(
+                "only an elevator can have a common hinge (its two halves share one line)",
+                source=source,
+                path=f"{path}.common_hinge",
+            )
+        if c["hinge"] != "straight" or is_pair:
+            raise InputError(
+                "a common hinge is straight and takes one chord fraction (at the inner end): "
+                "set hinge: straight and hinge_at: <fraction>",
+                source=source,
+                path=f"{path}.hinge_at",
+            )
+    elif c["hinge"] == "straight" and not is_pair:
+        raise InputError(
+            "a straight hinge takes the chord fractions at both ends, e.g. [0.72, 0.75]",
+            source=source,
+            path=f"{path}.hinge_at",
+        )
+    start, end = c["span_start"], c["span_end"]
+    if start[0] == end[0] and start[1] >= end[1]:
+        raise InputError(
+            f"must be outboard of span_start (got span_start {start[1]:g}, span_end {end[1]:g})",
+            source=source,
+            path=f"{path}.span_end",
+        )
+    return ControlSpec(
+        kind=kind,
+        span_start=start[1],
+        span_end=end[1],
+        span_start_is_fraction=start[0] == 0,
+        span_end_is_fraction=end[0] == 0,
+        hinge=c["hinge"],
+        hinge_at=tuple(hinge_at) if is_pair else (hinge_at, hinge_at),
+        common_hinge=c["common_hinge"],
+    )

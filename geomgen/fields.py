@@ -1,0 +1,309 @@
+"""Declarative field specs: one declaration gives the JSON Schema and the value checks.
+
+A design file's keys are declared once with the classes below. From that declaration geomgen
+(1) emits a JSON Schema (``geomgen schema``) that editors use to complete and check files,
+(2) validates the structure with the ``jsonschema`` library, and (3) converts every value into
+plain SI floats with its range checked. Messages name the key path, e.g.
+``wing.taper_ratio: must be in (0, 1.5] (got -0.2)``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+from .units import DIMENSIONS, OUTPUT_UNITS, UnitParseError, parse_quantity
+
+
+class FieldError(ValueError):
+    """A value broke its declaration. ``path`` is the dotted key path."""
+
+    def __init__(self, path: str, message: str):
+        self.path = path
+        self.message = message
+        super().__init__(f"{path}: {message}" if path else message)
+
+
+def _fmt(x: float) -> str:
+    return f"{x:g}"
+
+
+@dataclass(frozen=True)
+class Bounds:
+    """Allowed interval of a value in SI; ``None`` = unbounded. Exclusive ends are open."""
+
+    low: float | None = None
+    high: float | None = None
+    low_open: bool = False
+    high_open: bool = False
+
+    def check(self, value: float) -> bool:
+        if not math.isfinite(value):
+            return False
+        if self.low is not None and (value < self.low or (self.low_open and value == self.low)):
+            return False
+        return self.high is None or not (
+            value > self.high or (self.high_open and value == self.high)
+        )
+
+    def describe(self, scale: float = 1.0, unit: str = "") -> str:
+        """Human text such as ``in (0, 1.5]`` or ``> 0 m``; values shown times ``scale``."""
+        u = f" {unit}" if unit else ""
+        lo = None if self.low is None else _fmt(self.low * scale)
+        hi = None if self.high is None else _fmt(self.high * scale)
+        if lo is not None and hi is not None:
+            left, right = "(" if self.low_open else "[", ")" if self.high_open else "]"
+            return f"in {left}{lo}, {hi}{right}{u}"
+        if lo is not None:
+            return f"{'>' if self.low_open else '>='} {lo}{u}"
+        if hi is not None:
+            return f"{'<' if self.high_open else '<='} {hi}{u}"
+        return "any finite value"
+
+
+def gt(x: float) -> Bounds:
+    return Bounds(low=x, low_open=True)
+
+
+def ge(x: float) -> Bounds:
+    return Bounds(low=x)
+
+
+def between(lo: float, hi: float, *, lo_open: bool = False, hi_open: bool = False) -> Bounds:
+    return Bounds(lo, hi, lo_open, hi_open)
+
+
+@dataclass(frozen=True)
+class Field:
+    """Base of every declaration."""
+
+    description: str = ""
+    default: Any = None  # None = required (unless ``optional``)
+    optional: bool = False
+
+    @property
+    def required(self) -> bool:
+        return self.default is None and not self.optional
+
+    def schema(self) -> dict[str, Any]:  # pragma: no cover - overridden
+        raise NotImplementedError
+
+    def _schema_common(self, body: dict[str, Any]) -> dict[str, Any]:
+        if self.description:
+            body["description"] = self.description
+        if self.default is not None:
+            body["default"] = self.default
+        return body
+
+    def parse(self, value: Any, path: str) -> Any:  # pragma: no cover - overridden
+        raise NotImplementedError
+
+
+@dataclass(frozen=True)
+class Number(Field):
+    """A dimensionless number (bare YAML number)."""
+
+    bounds: Bounds = Bounds()
+    integer: bool = False
+
+    def schema(self) -> dict[str, Any]:
+        body: dict[str, Any] = {"type": "integer" if self.integer else "number"}
+        b = self.bounds
+        if b.low is not None:
+            body["exclusiveMinimum" if b.low_open else "minimum"] = b.low
+        if b.high is not None:
+            body["exclusiveMaximum" if b.high_open else "maximum"] = b.high
+        return self._schema_common(body)
+
+    def parse(self, value: Any, path: str) -> float | int:
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            allowed = self.bounds.describe()
+            raise FieldError(path, f"must be a plain number {allowed} (got {value!r})")
+        if self.integer and not float(value).is_integer():
+            raise FieldError(path, f"must be a whole number (got {value!r})")
+        if not self.bounds.check(float(value)):
+            raise FieldError(path, f"must be {self.bounds.describe()} (got {value!r})")
+        return int(value) if self.integer else float(value)
+
+
+@dataclass(frozen=True)
+class Quantity(Field):
+    """A dimensional value written as ``"<number> <unit>"``; parsed to SI."""
+
+    dimension: str = "length"
+    bounds: Bounds = Bounds()
+
+    def schema(self) -> dict[str, Any]:
+        dim = DIMENSIONS[self.dimension]
+        body = {
+            "type": "string",
+            "pattern": r"^\s*[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?\s*[A-Za-z°µ]",
+            "examples": [dim.example.split('"')[1]],
+        }
+        return self._schema_common(body)
+
+    def parse(self, value: Any, path: str) -> float:
+        try:
+            si = parse_quantity(value, self.dimension)
+        except UnitParseError as err:
+            raise FieldError(path, str(err)) from None
+        if not self.bounds.check(si):
+            unit, scale = _display_unit(self.dimension)
+            raise FieldError(path, f"must be {self.bounds.describe(scale, unit)} (got {value!r})")
+        return si
+
+
+def _display_unit(dimension: str) -> tuple[str, float]:
+    kind = dimension if dimension in OUTPUT_UNITS["si"] else "length"
+    return OUTPUT_UNITS["si"][kind][0], OUTPUT_UNITS["si"][kind][1]
+
+
+@dataclass(frozen=True)
+class Text(Field):
+    """A string, optionally limited to a set of words or a pattern."""
+
+    choices: tuple[str, ...] = ()
+    max_length: int = 200
+    pattern: str | None = None
+
+    def schema(self) -> dict[str, Any]:
+        body: dict[str, Any] = {"type": "string", "maxLength": self.max_length}
+        if self.choices:
+            body["enum"] = list(self.choices)
+        if self.pattern:
+            body["pattern"] = self.pattern
+        return self._schema_common(body)
+
+    def parse(self, value: Any, path: str) -> str:
+        if not isinstance(value, str):
+            raise FieldError(path, f"must be text (got {value!r})")
+        if self.choices and value not in self.choices:
+            raise FieldError(path, f"must be one of {', '.join(self.choices)} (got {value!r})")
+        return value
+
+
+@dataclass(frozen=True)
+class AnyOf(Field):
+    """The value may take any of several forms; the first that parses wins."""
+
+    options: tuple[Field, ...] = ()
+    summary: str = ""  # what is allowed, in words, for the message
+    tagged: bool = False  # return (index of the option that parsed, value)
+
+    def schema(self) -> dict[str, Any]:
+        return self._schema_common({"anyOf": [o.schema() for o in self.options]})
+
+    def parse(self, value: Any, path: str) -> Any:
+        errors = []
+        for index, option in enumerate(self.options):
+            try:
+                parsed = option.parse(value, path)
+                return (index, parsed) if self.tagged else parsed
+            except FieldError as err:
+                errors.append(err.message)
+        # A value of the right shape but out of range: report that message, it is the useful one.
+        for option, message in zip(self.options, errors, strict=True):
+            if _shape_fits(option, value):
+                raise FieldError(path, message)
+        raise FieldError(path, f"must be {self.summary} (got {value!r})")
+
+
+def _shape_fits(option: Field, value: Any) -> bool:
+    if isinstance(option, Number):
+        return isinstance(value, (int, float)) and not isinstance(value, bool)
+    if isinstance(option, Quantity):
+        return isinstance(value, str) and any(c.isdigit() for c in value)
+    if isinstance(option, ListOf):
+        return isinstance(value, list)
+    return False
+
+
+@dataclass(frozen=True)
+class Flag(Field):
+    """A yes/no value (YAML true/false, yes/no)."""
+
+    def schema(self) -> dict[str, Any]:
+        return self._schema_common({"type": "boolean"})
+
+    def parse(self, value: Any, path: str) -> bool:
+        if not isinstance(value, bool):
+            raise FieldError(path, f"must be true or false (got {value!r})")
+        return value
+
+
+@dataclass(frozen=True)
+class ListOf(Field):
+    """A list of items of one declaration."""
+
+    item: Field = field(default_factory=Field)
+    min_items: int = 0
+    max_items: int = 1000
+
+    def schema(self) -> dict[str, Any]:
+        body = {
+            "type": "array",
+            "items": self.item.schema(),
+            "minItems": self.min_items,
+            "maxItems": self.max_items,
+        }
+        return self._schema_common(body)
+
+    def parse(self, value: Any, path: str) -> list[Any]:
+        if not isinstance(value, list):
+            raise FieldError(path, f"must be a list (got {type(value).__name__})")
+        if not self.min_items <= len(value) <= self.max_items:
+            raise FieldError(
+                path,
+                f"must have {self.min_items} to {self.max_items} items (got {len(value)})",
+            )
+        return [self.item.parse(v, f"{path}[{i}]") for i, v in enumerate(value)]
+
+
+@dataclass(frozen=True)
+class Mapping(Field):
+    """A mapping with declared keys; unknown keys are refused."""
+
+    fields: tuple[tuple[str, Field], ...] = ()
+
+    def schema(self) -> dict[str, Any]:
+        body: dict[str, Any] = {
+            "type": "object",
+            "properties": {k: f.schema() for k, f in self.fields},
+            "additionalProperties": False,
+        }
+        required = [k for k, f in self.fields if f.required]
+        if required:
+            body["required"] = required
+        return self._schema_common(body)
+
+    def parse(self, value: Any, path: str) -> dict[str, Any]:
+        if not isinstance(value, dict):
+            where = path or "the design"
+            found = type(value).__name__
+            raise FieldError(path, f"{where} must be a mapping of keys (got {found})")
+        known = dict(self.fields)
+        for key in value:
+            if key not in known:
+                raise FieldError(
+                    _join(path, str(key)),
+                    f"unknown key; allowed here: {', '.join(known)}",
+                )
+        out: dict[str, Any] = {}
+        for key, spec in self.fields:
+            sub = _join(path, key)
+            if key in value and value[key] is not None:
+                out[key] = spec.parse(value[key], sub)
+            elif key in value and value[key] is None and spec.required:
+                raise FieldError(sub, "must have a value (got nothing)")
+            elif spec.default is not None:
+                out[key] = spec.parse(spec.default, sub)
+            elif spec.required:
+                raise FieldError(sub, f"missing required key ({spec.description or 'see schema'})")
+            else:
+                out[key] = None
+        return out
+
+
+def _join(path: str, key: str) -> str:
+    return f"{path}.{key}" if path else key

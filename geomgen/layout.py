@@ -1,0 +1,314 @@
+"""Layout: corner points and hinge lines of every surface in the aircraft frame (pure math).
+
+Aircraft frame: x aft, y right (starboard), z up, origin at the user's datum, metres.
+Sections of the wing and horizontal tail lie in planes y = const; those of the fin in planes
+z = const. Each section is turned by its incidence (root incidence + local twist, nose up
+positive; for the fin, leading edge to starboard positive) about the point at ``twist_axis`` of
+its chord. Corner points are the leading and trailing edges of the chord line at each panel end;
+hinge points sit on the section's mean line (halfway between upper and lower surface) at the
+hinge's local chord fraction, which is where a hinge axis goes in a built surface.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+
+from . import airfoils
+from .errors import InputError
+from .sizing import Sizing, SurfaceSizing
+
+Point = tuple[float, float, float]
+
+#: Display names of surfaces and their parts.
+PART_NAMES = {"wing": "wing", "horizontal_tail": "stabilizer", "vertical_tail": "fin"}
+
+
+@dataclass(frozen=True)
+class PanelCorners:
+    """Four corners of one panel of one side, in the aircraft frame (m)."""
+
+    side: str  # right | left | centre (fin)
+    panel: int  # 0 at the root
+    le_inner: Point
+    te_inner: Point
+    te_outer: Point
+    le_outer: Point
+
+
+@dataclass(frozen=True)
+class HingePoint:
+    s: float  # spanwise position from the root (m)
+    chord_fraction: float  # local chord fraction of the hinge line
+    point: Point  # aircraft frame, on the mean line (m)
+
+
+@dataclass(frozen=True)
+class ControlLayout:
+    """One control surface on one side."""
+
+    kind: str  # aileron | flap | elevator | rudder
+    side: str
+    name: str  # e.g. aileron-right, rudder
+    hinge_kind: str  # constant_fraction | straight | common
+    s_start: float  # m from the root
+    s_end: float
+    hinge: tuple[HingePoint, ...]  # inner end, panel breaks in between, outer end
+    area: float  # m^2, projected area aft of the hinge line (one side)
+    chord_inner: float  # m, chord of the moving part at its inner end
+    chord_outer: float
+
+    @property
+    def hinge_length(self) -> float:
+        a, b = self.hinge[0].point, self.hinge[-1].point
+        return math.dist(a, b)
+
+
+@dataclass(frozen=True)
+class HingeComparison:
+    """A common straight elevator hinge against two separate constant-fraction hinges."""
+
+    common_area: float  # m^2, both halves
+    common_fraction_of_tail: float
+    common_chord_fractions: tuple[float, float]  # local hinge fraction at inner and outer end
+    separate_area: float  # m^2, both halves, hinge at the same fraction everywhere
+    separate_fraction_of_tail: float
+    separate_chord_fraction: float
+
+
+@dataclass(frozen=True)
+class SurfaceLayout:
+    sizing: SurfaceSizing
+    corners: tuple[PanelCorners, ...]
+    controls: tuple[ControlLayout, ...]
+    hinge_comparison: HingeComparison | None
+
+    @property
+    def key(self) -> str:
+        return self.sizing.key
+
+    @property
+    def sides(self) -> tuple[str, ...]:
+        return ("right", "left") if self.sizing.planform.symmetric else ("centre",)
+
+
+@dataclass(frozen=True)
+class Layout:
+    sizing: Sizing
+    surfaces: tuple[SurfaceLayout, ...]
+
+    def surface(self, key: str) -> SurfaceLayout:
+        return next(s for s in self.surfaces if s.key == key)
+
+
+def part_name(base: str, side: str) -> str:
+    """Plain part name with its side, e.g. ``aileron-right``; the fin's parts have no side."""
+    return base if side == "centre" else f"{base}-{side}"
+
+
+def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndarray:
+    """Place section points given in unit-chord coordinates (x/c, y/c) at spanwise position s.
+
+    Returns an (N, 3) array in the aircraft frame (m). ``side`` is right, left or centre (fin).
+    """
+    pts = np.asarray(points, dtype=float).reshape(-1, 2)
+    pf, spec = ss.planform, ss.spec
+    x_le, chord, rise, twist = pf.at(s)
+    theta = spec.incidence + twist
+    a = spec.twist_axis
+    u = (pts[:, 0] - a) * chord
+    v = pts[:, 1] * chord
+    cos_t, sin_t = math.cos(theta), math.sin(theta)
+    x = ss.apex_x + x_le + a * chord + u * cos_t + v * sin_t
+    normal = -u * sin_t + v * cos_t
+    out = np.empty((len(pts), 3))
+    out[:, 0] = x
+    if pf.symmetric:
+        out[:, 1] = s if side == "right" else -s
+        out[:, 2] = ss.apex_z + rise + normal
+    else:
+        out[:, 1] = normal
+        out[:, 2] = ss.apex_z + s
+    return out
+
+
+def _point(ss: SurfaceSizing, side: str, s: float, x: float, y: float = 0.0) -> Point:
+    p = place(ss, side, s, np.array([[x, y]]))[0]
+    return (float(p[0]), float(p[1]), float(p[2]))
+
+
+@lru_cache(maxsize=64)
+def _section(name: str, dirs: tuple) -> airfoils.Airfoil:
+    return airfoils.load(name, dirs)
+
+
+def mean_line_offset(ss: SurfaceSizing, s: float, fraction: float, dirs: tuple = ()) -> float:
+    """y/c of the section's mean line (halfway between the surfaces) at a chord fraction."""
+    i = ss.planform.panel_index(s)
+    a, b = ss.planform.stations[i], ss.planform.stations[i + 1]
+    t = (s - a.s) / (b.s - a.s)
+
+    def mid(blend: tuple[str, str, float]) -> float:
+        ya = _mid_y(_section(blend[0], dirs), fraction)
+        yb = _mid_y(_section(blend[1], dirs), fraction)
+        return (1 - blend[2]) * ya + blend[2] * yb
+
+    return (1 - t) * mid(a.airfoil) + t * mid(b.airfoil)
+
+
+def _mid_y(af: airfoils.Airfoil, x: float) -> float:
+    yu = np.interp(x, af.upper[:, 0], af.upper[:, 1])
+    yl = np.interp(x, af.lower[:, 0], af.lower[:, 1])
+    return float(0.5 * (yu + yl))
+
+
+def lay_out(sizing: Sizing, airfoil_dirs: tuple = ()) -> Layout:
+    """Corner points and control-surface hinge lines of every surface, both sides."""
+    source = sizing.design.source
+    return Layout(
+        sizing=sizing,
+        surfaces=tuple(_surface(ss, airfoil_dirs, source) for ss in sizing.surfaces),
+    )
+
+
+def _surface(ss: SurfaceSizing, dirs: tuple, source: str) -> SurfaceLayout:
+    pf = ss.planform
+    sides = ("right", "left") if pf.symmetric else ("centre",)
+    corners = []
+    for side in sides:
+        for i, (a, b) in enumerate(zip(pf.stations, pf.stations[1:], strict=False)):
+            corners.append(
+                PanelCorners(
+                    side=side,
+                    panel=i,
+                    le_inner=_point(ss, side, a.s, 0.0),
+                    te_inner=_point(ss, side, a.s, 1.0),
+                    te_outer=_point(ss, side, b.s, 1.0),
+                    le_outer=_point(ss, side, b.s, 0.0),
+                )
+            )
+    spans = _resolve_spans(ss, source)
+    controls = []
+    comparison = None
+    for spec in ss.spec.controls:
+        s0, s1 = spans[spec.kind]
+        fraction = _hinge_fraction_function(
+            ss, spec.hinge, spec.common_hinge, spec.hinge_at, s0, s1
+        )
+        stations = [s0] + [st.s for st in pf.stations if s0 < st.s < s1] + [s1]
+        fractions = [fraction(s) for s in stations]
+        path = f"{ss.key}.controls.{spec.kind}.hinge_at"
+        for s, f in zip(stations, fractions, strict=True):
+            if not 0.0 < f < 1.0:
+                raise InputError(
+                    f"the hinge line leaves the chord: local chord fraction {f:.3f} at "
+                    f"{s:.3f} m from the root (must stay in (0, 1))",
+                    source=source,
+                    path=path,
+                )
+        area = _area_aft(ss, stations, fractions)
+        hinge_kind = "common" if spec.common_hinge else spec.hinge
+        for side in sides:
+            hinge = tuple(
+                HingePoint(
+                    s=s,
+                    chord_fraction=f,
+                    point=_point(ss, side, s, f, mean_line_offset(ss, s, f, dirs)),
+                )
+                for s, f in zip(stations, fractions, strict=True)
+            )
+            controls.append(
+                ControlLayout(
+                    kind=spec.kind,
+                    side=side,
+                    name=part_name(spec.kind, side),
+                    hinge_kind=hinge_kind,
+                    s_start=s0,
+                    s_end=s1,
+                    hinge=hinge,
+                    area=area,
+                    chord_inner=(1 - fractions[0]) * pf.at(s0)[1],
+                    chord_outer=(1 - fractions[-1]) * pf.at(s1)[1],
+                )
+            )
+        if spec.common_hinge:
+            f0 = spec.hinge_at[0]
+            separate = _area_aft(ss, stations, [f0] * len(stations))
+            comparison = HingeComparison(
+                common_area=2 * area,
+                common_fraction_of_tail=2 * area / pf.area,
+                common_chord_fractions=(fractions[0], fractions[-1]),
+                separate_area=2 * separate,
+                separate_fraction_of_tail=2 * separate / pf.area,
+                separate_chord_fraction=f0,
+            )
+    return SurfaceLayout(
+        sizing=ss, corners=tuple(corners), controls=tuple(controls), hinge_comparison=comparison
+    )
+
+
+def _resolve_spans(ss: SurfaceSizing, source: str) -> dict[str, tuple[float, float]]:
+    """Spanwise limits (m from the root) of every control surface, checked against the tip and
+    against each other."""
+    semi = ss.planform.semi_span
+    spans: dict[str, tuple[float, float]] = {}
+    for c in ss.spec.controls:
+        base = f"{ss.key}.controls.{c.kind}"
+        s0 = c.span_start * semi if c.span_start_is_fraction else c.span_start
+        s1 = c.span_end * semi if c.span_end_is_fraction else c.span_end
+        if s1 > semi * (1 + 1e-9):
+            raise InputError(
+                f"runs past the tip: the semi-span is {semi:.3f} m (got {s1:.3f} m)",
+                source=source,
+                path=f"{base}.span_end",
+            )
+        if s0 > semi * (1 + 1e-9):
+            raise InputError(
+                f"lies past the tip: the semi-span is {semi:.3f} m (got {s0:.3f} m)",
+                source=source,
+                path=f"{base}.span_start",
+            )
+        if s1 - s0 < 1e-3 * semi:
+            raise InputError(
+                f"must be outboard of span_start (got {s0:.3f} m to {s1:.3f} m from the root)",
+                source=source,
+                path=f"{base}.span_end",
+            )
+        for other, (o0, o1) in spans.items():
+            if s0 < o1 and o0 < s1:
+                raise InputError(
+                    f"overlaps the {other} ({o0:.3f} m to {o1:.3f} m from the root); control "
+                    f"surfaces may not share span",
+                    source=source,
+                    path=f"{base}.span_start",
+                )
+        spans[c.kind] = (s0, min(s1, semi))
+    return spans
+
+
+def _hinge_fraction_function(ss, hinge: str, common: bool, hinge_at, s0: float, s1: float):
+    """Local chord fraction of the hinge line as a function of spanwise position s."""
+    pf = ss.planform
+    if hinge == "constant_fraction":
+        return lambda s: hinge_at[0]
+    x0 = pf.at(s0)[0] + hinge_at[0] * pf.at(s0)[1]
+    # a common hinge is perpendicular to the plane of symmetry: one x along the whole line
+    x1 = x0 if common else pf.at(s1)[0] + hinge_at[1] * pf.at(s1)[1]
+
+    def fraction(s: float) -> float:
+        x_le, chord, _, _ = pf.at(s)
+        xh = x0 + (x1 - x0) * (s - s0) / (s1 - s0)
+        return (xh - x_le) / chord
+
+    return fraction
+
+
+def _area_aft(ss: SurfaceSizing, stations: list[float], fractions: list[float]) -> float:
+    """Projected area aft of a hinge line, exact for piecewise-linear chords (trapezoid rule
+    with nodes at every panel break, where the aft chord's slope changes)."""
+    pf = ss.planform
+    aft = [(1 - f) * pf.at(s)[1] for s, f in zip(stations, fractions, strict=True)]
+    return float(np.trapezoid(aft, stations))

@@ -1,0 +1,166 @@
+"""Quantities with units at the edge of the program.
+
+Every dimensional value in a design file is a string such as ``"52 kn"`` or ``"12.5 m^2"``.
+This module parses those strings with pint into SI floats (m, m^2, m/s, N, rad, kg, K, Pa) and
+formats SI floats back into the user's unit system for human-readable output. Nothing inside
+geomgen carries pint objects: the rest of the code sees plain floats in SI.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+#: Standard acceleration of gravity, exact by definition (CGPM 1901), m/s^2.
+G0 = 9.80665
+
+_NUMBER_UNIT = re.compile(
+    r"^\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*"
+    r"(?P<unit>[A-Za-z°µ][A-Za-z0-9°µ^*/ ._()]*?)\s*$"
+)
+
+_ANGLE_UNITS = frozenset({"degree", "radian", "arcminute", "arcsecond", "turn", "gradian"})
+
+
+@dataclass(frozen=True)
+class Dimension:
+    """One physical kind of quantity a design key may hold."""
+
+    name: str  # used in messages and in the JSON schema, e.g. "length"
+    si_unit: str  # the unit geomgen works in internally
+    pint_dims: tuple[str, ...]  # accepted pint dimensionalities, as strings
+    example: str  # shown in messages: what a valid value looks like
+
+
+DIMENSIONS: dict[str, Dimension] = {
+    d.name: d
+    for d in (
+        Dimension("length", "m", ("[length]",), '"1.2 m" or "4 ft"'),
+        Dimension("area", "m^2", ("[length] ** 2",), '"12.5 m^2" or "135 ft^2"'),
+        Dimension("speed", "m/s", ("[length] / [time]",), '"52 kn" or "27 m/s"'),
+        Dimension("angle", "rad", ("angle",), '"3 deg"'),
+        # A weight may be written as a mass ("650 kg", "1450 lb") or as a force ("6400 N",
+        # "1450 lbf"); a mass is turned into its weight with standard gravity.
+        Dimension(
+            "weight",
+            "N",
+            ("[length] * [mass] / [time] ** 2", "[mass]"),
+            '"650 kg", "1450 lb" or "6400 N"',
+        ),
+        Dimension("mass", "kg", ("[mass]",), '"650 kg" or "1450 lb"'),
+        Dimension("density", "kg/m^3", ("[mass] / [length] ** 3",), '"1.24 g/cm^3"'),
+        Dimension("temperature", "K", ("[temperature]",), '"288.15 K" or "15 degC"'),
+    )
+}
+
+
+@lru_cache(maxsize=1)
+def registry():
+    """The one pint registry geomgen uses (built on first use; pint is imported lazily)."""
+    import pint
+
+    try:
+        return pint.UnitRegistry(cache_folder=":auto:")
+    except OSError:  # no writable cache folder: slower start, same result
+        return pint.UnitRegistry()
+
+
+class UnitParseError(ValueError):
+    """A value could not be read as a quantity of the wanted dimension (message is one line)."""
+
+
+def parse_quantity(text: object, dimension: str) -> float:
+    """Parse ``"<number> <unit>"`` into a float in the SI unit of ``dimension``.
+
+    Only a plain number followed by a unit expression is accepted: no arithmetic, no bare
+    numbers (raise UnitParseError with a message saying what is allowed).
+    """
+    dim = DIMENSIONS[dimension]
+    if isinstance(text, bool) or not isinstance(text, str):
+        raise UnitParseError(
+            f"must be a string with a unit of {dim.name}, e.g. {dim.example} (got {text!r})"
+        )
+    if len(text) > 64:
+        raise UnitParseError(f"must be a short {dim.name} with a unit (got {len(text)} characters)")
+    match = _NUMBER_UNIT.match(text)
+    if match is None:
+        raise UnitParseError(
+            f"must be a number with a unit of {dim.name}, e.g. {dim.example} (got {text!r})"
+        )
+    value = float(match["num"])
+    unit_text = match["unit"].replace("^", "**")
+    ureg = registry()
+    try:
+        unit = ureg.Unit(unit_text)
+    except Exception as err:  # pint raises several unrelated types for unknown units
+        raise UnitParseError(f"unknown unit {match['unit']!r}; use e.g. {dim.example}") from err
+    if dimension == "angle":
+        if str(unit) not in _ANGLE_UNITS:
+            raise UnitParseError(f"must be an angle, e.g. {dim.example} (got {text!r})")
+        result = ureg.Quantity(value, unit).to("radian").magnitude
+    elif dimension == "temperature":
+        if str(unit.dimensionality) != "[temperature]":
+            raise UnitParseError(f"must be a temperature, e.g. {dim.example} (got {text!r})")
+        result = ureg.Quantity(value, unit).to("kelvin").magnitude
+    else:
+        found = str(unit.dimensionality)
+        if found not in dim.pint_dims:
+            raise UnitParseError(
+                f"must be a {dim.name}, e.g. {dim.example} (got {text!r}, which is {found})"
+            )
+        quantity = ureg.Quantity(value, unit)
+        if dimension == "weight" and found == "[mass]":
+            result = quantity.to("kg").magnitude * G0
+        else:
+            result = quantity.to(dim.si_unit.replace("^", "**")).magnitude
+    result = float(result)
+    if not math.isfinite(result):
+        raise UnitParseError(f"must be a finite {dim.name} (got {text!r})")
+    return result
+
+
+# --- output -------------------------------------------------------------------------------
+
+#: Output unit per (unit system, kind of quantity). Exact factors from SI (the definitions of the
+#: international foot and pound: 1 ft = 0.3048 m, 1 lb = 0.45359237 kg; 1 kn = 1852/3600 m/s).
+_FT = 0.3048
+_LBF = 0.45359237 * G0
+OUTPUT_UNITS: dict[str, dict[str, tuple[str, float]]] = {
+    "si": {
+        "length": ("m", 1.0),
+        "area": ("m^2", 1.0),
+        "speed": ("m/s", 1.0),
+        "angle": ("deg", 180.0 / math.pi),
+        "weight": ("N", 1.0),
+        "mass": ("kg", 1.0),
+        "density": ("kg/m^3", 1.0),
+        "pressure": ("Pa", 1.0),
+        "temperature": ("K", 1.0),
+        "volume": ("m^3", 1.0),
+        "wing_loading": ("N/m^2", 1.0),
+    },
+    "imperial": {
+        "length": ("ft", 1.0 / _FT),
+        "area": ("ft^2", 1.0 / _FT**2),
+        "speed": ("kn", 3600.0 / 1852.0),
+        "angle": ("deg", 180.0 / math.pi),
+        "weight": ("lbf", 1.0 / _LBF),
+        "mass": ("lb", 1.0 / 0.45359237),
+        "density": ("slug/ft^3", _FT**3 / (0.45359237 * G0 / _FT)),
+        "pressure": ("lbf/ft^2", _FT**2 / _LBF),
+        "temperature": ("K", 1.0),
+        "volume": ("ft^3", 1.0 / _FT**3),
+        "wing_loading": ("lbf/ft^2", _FT**2 / _LBF),
+    },
+}
+
+#: SI unit symbol of each kind of quantity, as written into report.json.
+SI_UNITS: dict[str, str] = {kind: unit for kind, (unit, _) in OUTPUT_UNITS["si"].items()}
+
+
+def to_output(value_si: float, kind: str, system: str) -> tuple[float, str]:
+    """Convert an SI value of ``kind`` into the output unit of ``system`` ('si' or 'imperial')."""
+    unit, factor = OUTPUT_UNITS[system][kind]
+    return value_si * factor, unit
