@@ -106,7 +106,7 @@ def parse_quantity(text: object, dimension: str) -> float:
         result = ureg.Quantity(value, unit).to("kelvin").magnitude
     else:
         found = str(unit.dimensionality)
-        if found not in dim.pint_dims:
+        if not any(unit.dimensionality == ureg.get_dimensionality(d) for d in dim.pint_dims):
             raise UnitParseError(
                 f"must be a {dim.name}, e.g. {dim.example} (got {text!r}, which is {found})"
             )
