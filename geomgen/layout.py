@@ -2,10 +2,11 @@
 
 Aircraft frame: x aft, y right (starboard), z up, origin at the user's datum, metres.
 Sections of the wing and horizontal tail lie in planes y = const; those of the fin in planes
-z = const. Each section is turned by its incidence (root incidence + local twist, nose up
-positive; for the fin, leading edge to starboard positive) about the point at ``twist_axis`` of
-its chord. Corner points are the leading and trailing edges of the chord line at each panel end;
-hinge points sit on the section's mean line (halfway between upper and lower surface) at the
+z = const. Each section is turned by its local twist about the point at ``twist_axis`` of its
+chord, then the whole surface by its incidence about a spanwise axis through the root's
+``twist_axis`` point (nose up positive; for the fin, leading edge to starboard positive).
+Corner points are the leading and trailing edges of the chord line at each panel end; hinge
+points sit on the section's mean line (halfway between upper and lower surface) at the
 hinge's local chord fraction, which is where a hinge axis goes in a built surface.
 """
 
@@ -112,25 +113,34 @@ def part_name(base: str, side: str) -> str:
 def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndarray:
     """Place section points given in unit-chord coordinates (x/c, y/c) at spanwise position s.
 
-    Returns an (N, 3) array in the aircraft frame (m). ``side`` is right, left or centre (fin).
+    The section is first turned by its local twist about its own ``twist_axis`` point, then the
+    whole surface is turned rigidly by the incidence about a spanwise axis through the root's
+    ``twist_axis`` point (so an untwisted surface stays a rigid body and straight lines on it,
+    such as a common hinge, stay straight). Returns an (N, 3) array in the aircraft frame (m);
+    ``side`` is right, left or centre (fin).
     """
     pts = np.asarray(points, dtype=float).reshape(-1, 2)
     pf, spec = ss.planform, ss.spec
     x_le, chord, rise, twist = pf.at(s)
-    theta = spec.incidence + twist
     a = spec.twist_axis
+    # twist about the section's own axis point (local frame: x aft from apex, n normal)
     u = (pts[:, 0] - a) * chord
     v = pts[:, 1] * chord
-    cos_t, sin_t = math.cos(theta), math.sin(theta)
-    x = ss.apex_x + x_le + a * chord + u * cos_t + v * sin_t
-    normal = -u * sin_t + v * cos_t
+    ct, st = math.cos(twist), math.sin(twist)
+    x = x_le + a * chord + u * ct + v * st
+    n = rise - u * st + v * ct
+    # incidence: rigid turn about the root's axis point (x = a c_root, n = 0), nose up positive
+    x0 = a * pf.root_chord
+    ci, si = math.cos(spec.incidence), math.sin(spec.incidence)
+    xr = x0 + (x - x0) * ci + n * si
+    nr = -(x - x0) * si + n * ci
     out = np.empty((len(pts), 3))
-    out[:, 0] = x
+    out[:, 0] = ss.apex_x + xr
     if pf.symmetric:
         out[:, 1] = s if side == "right" else -s
-        out[:, 2] = ss.apex_z + rise + normal
+        out[:, 2] = ss.apex_z + nr
     else:
-        out[:, 1] = normal
+        out[:, 1] = nr
         out[:, 2] = ss.apex_z + s
     return out
 

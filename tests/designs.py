@@ -1,0 +1,47 @@
+"""Test helpers: the demo design and small designs built from it."""
+
+from __future__ import annotations
+
+import copy
+from pathlib import Path
+
+import yaml
+
+from geomgen import design
+
+ROOT = Path(__file__).resolve().parent.parent
+DEMO = ROOT / "examples" / "veyra-t2.yaml"
+PROFILES = ROOT / "profiles"
+
+
+def demo_document() -> dict:
+    """The demo design file as a plain mapping (a fresh copy each call)."""
+    return copy.deepcopy(yaml.safe_load(DEMO.read_text()))
+
+
+def make_design(document: dict) -> design.Design:
+    return design.from_mapping(document, source="test.yaml")
+
+
+def trapezoid_document(
+    area: str = "12 m^2",
+    aspect_ratio: float = 8.0,
+    taper_ratio: float = 0.5,
+    sweep: str = "0 deg",
+    sweep_at: float = 0.25,
+) -> dict:
+    """A plain trapezoidal wing with no incidence, twist or dihedral, plus the demo's tails."""
+    doc = demo_document()
+    wing = doc["wing"]
+    wing.pop("panels")
+    wing.update(
+        area=area,
+        aspect_ratio=aspect_ratio,
+        taper_ratio=taper_ratio,
+        sweep=sweep,
+        sweep_at=sweep_at,
+        dihedral="0 deg",
+        incidence="0 deg",
+        twist="0 deg",
+    )
+    return doc
