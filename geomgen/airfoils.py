@@ -592,6 +592,8 @@ def load(name: str, search_dirs: Sequence[Path] = ()) -> Airfoil:
     for base in [*map(Path, search_dirs), None]:
         for cand in (text, text + ".dat", text + ".txt"):
             p = Path(cand) if base is None else Path(base) / cand
+            if p in tried:
+                continue
             tried.append(p)
             if p.is_file():
                 return read_coordinates(p)

@@ -11,6 +11,7 @@ from __future__ import annotations
 import json
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -26,11 +27,12 @@ from .fields import (
     Text,
     between,
     ge,
-    gt,
 )
 
 #: Design files larger than this are refused before parsing (bytes).
 MAX_DESIGN_BYTES = 1_000_000
+#: Design files holding more values than this (after YAML aliases are expanded) are refused.
+MAX_DESIGN_VALUES = 100_000
 
 DEG = math.pi / 180.0
 
@@ -87,8 +89,81 @@ def _control(kind_word: str) -> Mapping:
                     "perpendicular to the plane of symmetry",
                 ),
             ),
+            (
+                "deflection",
+                Quantity(
+                    dimension="angle",
+                    bounds=between(-60 * DEG, 60 * DEG),
+                    default="0 deg",
+                    description="deflection the moving part is built at: trailing edge down "
+                    "positive (rudder: trailing edge left positive)",
+                ),
+            ),
+            (
+                "deflection_range",
+                Quantity(
+                    dimension="angle",
+                    bounds=between(0.0, 60 * DEG, lo_open=True),
+                    default="25 deg",
+                    description="the cove of the fixed part clears deflections up to this, "
+                    "both ways",
+                ),
+            ),
+            (
+                "hinge_gap",
+                Quantity(
+                    dimension="length",
+                    bounds=between(0.0, 0.05),
+                    default="1 mm",
+                    description="gap between the moving part's rounded nose and the cove",
+                ),
+            ),
+            (
+                "side_gap",
+                Quantity(
+                    dimension="length",
+                    bounds=between(0.0, 0.05),
+                    default="2 mm",
+                    description="spanwise gap at each end of the moving part",
+                ),
+            ),
         ),
     )
+
+
+_SOLIDS = Mapping(
+    description="settings of the solids, exports and self-checks",
+    default={},
+    fields=(
+        (
+            "te_thickness",
+            Quantity(
+                dimension="length",
+                bounds=between(0.0, 0.02),
+                default="0.5 mm",
+                description="minimum trailing-edge thickness, blended over the aft chord",
+            ),
+        ),
+        (
+            "tessellation",
+            Number(
+                bounds=between(1e-5, 0.01),
+                default=0.0005,
+                description="largest deviation of the STL from the true surface, as a "
+                "fraction of the local chord",
+            ),
+        ),
+        (
+            "section_points",
+            Number(
+                bounds=between(21, 301),
+                integer=True,
+                default=61,
+                description="points per surface (upper or lower) of each section",
+            ),
+        ),
+    ),
+)
 
 
 _PANEL = Mapping(
@@ -104,7 +179,7 @@ _PANEL = Mapping(
         (
             "chord_ratio",
             Number(
-                bounds=between(0.0, 2.0, lo_open=True),
+                bounds=between(0.02, 2.0),
                 description="chord at the panel's outer end / root chord",
             ),
         ),
@@ -155,15 +230,13 @@ def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, 
         planform += [
             (
                 "volume_coefficient",
-                Number(
-                    bounds=between(0.0, 3.0, lo_open=True), description="tail volume coefficient"
-                ),
+                Number(bounds=between(0.001, 3.0), description="tail volume coefficient"),
             ),
             (
                 "tail_arm",
                 AnyOf(
                     options=(
-                        Quantity(dimension="length", bounds=gt(0.0)),
+                        Quantity(dimension="length", bounds=between(0.0, 200.0, lo_open=True)),
                         Text(choices=("optimum",)),
                     ),
                     description="distance from the wing's MGC quarter-chord point to this "
@@ -179,7 +252,7 @@ def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, 
                 "area",
                 AnyOf(
                     options=(
-                        Quantity(dimension="area", bounds=gt(0.0)),
+                        Quantity(dimension="area", bounds=between(1e-3, 1e3)),
                         Text(choices=("from_stall",)),
                     ),
                     description="reference area, or 'from_stall' to size it from the "
@@ -192,14 +265,14 @@ def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, 
         (
             "aspect_ratio",
             Number(
-                bounds=between(0.0, 40.0, lo_open=True),
+                bounds=between(0.1, 40.0),
                 description="b^2/S (for the one-sided vertical tail h^2/S)",
             ),
         ),
         (
             "taper_ratio",
             Number(
-                bounds=between(0.0, 1.5, lo_open=True),
+                bounds=between(0.02, 1.5),
                 optional=True,
                 description="tip chord / root chord (trapezoidal planform; "
                 "leave out when panels are given)",
@@ -276,7 +349,9 @@ def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, 
                             (
                                 "x",
                                 Quantity(
-                                    dimension="length", description="fuselage station (x aft)"
+                                    dimension="length",
+                                    bounds=between(-1000.0, 1000.0),
+                                    description="fuselage station (x aft)",
                                 ),
                             ),
                         )
@@ -284,7 +359,10 @@ def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, 
                     (
                         "z",
                         Quantity(
-                            dimension="length", default="0 m", description="water line (z up)"
+                            dimension="length",
+                            bounds=between(-1000.0, 1000.0),
+                            default="0 m",
+                            description="water line (z up)",
                         ),
                     ),
                 ),
@@ -320,6 +398,7 @@ DESIGN = Mapping(
             Text(
                 max_length=60,
                 pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]*$",
+                pattern_words="letters, digits, '.', '_' or '-', starting with a letter or digit",
                 description="short name; used as the output folder name",
             ),
         ),
@@ -329,6 +408,7 @@ DESIGN = Mapping(
             Text(
                 optional=True,
                 pattern=r"^\d{4}-\d{2}-\d{2}$",
+                pattern_words="a date written YYYY-MM-DD",
                 description="design date YYYY-MM-DD, printed on reports",
             ),
         ),
@@ -349,7 +429,8 @@ DESIGN = Mapping(
                         "gross_weight",
                         Quantity(
                             dimension="weight",
-                            bounds=gt(0.0),
+                            # limits keep the sizing arithmetic finite (1 g to 100 t)
+                            bounds=between(0.01, 1e6),
                             description="design gross weight, as a mass or a force",
                         ),
                     ),
@@ -357,7 +438,7 @@ DESIGN = Mapping(
                         "stall_speed",
                         Quantity(
                             dimension="speed",
-                            bounds=gt(0.0),
+                            bounds=between(1.0, 150.0),
                             description="stall speed (true airspeed)",
                         ),
                     ),
@@ -381,7 +462,7 @@ DESIGN = Mapping(
                     (
                         "cl_max",
                         Number(
-                            bounds=between(0.0, 5.0, lo_open=True),
+                            bounds=between(0.1, 5.0),
                             description="maximum lift coefficient of the airplane",
                         ),
                     ),
@@ -394,14 +475,18 @@ DESIGN = Mapping(
             "vertical_tail",
             _surface("vertical tail, one-sided", tail=True, fin=True, controls=("rudder",)),
         ),
+        ("solids", _SOLIDS),
         (
             "tail_cone",
             Mapping(
                 optional=True,
                 description="tail-cone radii for the minimum-wetted-area tail arm",
                 fields=(
-                    ("front_radius", Quantity(dimension="length", bounds=gt(0.0))),
-                    ("rear_radius", Quantity(dimension="length", bounds=ge(0.0))),
+                    (
+                        "front_radius",
+                        Quantity(dimension="length", bounds=between(0.0, 5.0, lo_open=True)),
+                    ),
+                    ("rear_radius", Quantity(dimension="length", bounds=between(0.0, 5.0))),
                 ),
             ),
         ),
@@ -456,6 +541,10 @@ class ControlSpec:
     hinge: str  # constant_fraction | straight
     hinge_at: tuple[float, float]  # chord fraction at the inner and outer end
     common_hinge: bool
+    deflection: float  # rad, trailing edge down (rudder: left) positive
+    deflection_range: float  # rad, cove clears +- this
+    hinge_gap: float  # m
+    side_gap: float  # m
 
 
 @dataclass(frozen=True)
@@ -488,6 +577,13 @@ class SurfaceSpec:
 
 
 @dataclass(frozen=True)
+class SolidsSpec:
+    te_thickness: float  # m, minimum trailing-edge thickness
+    tessellation: float  # fraction of the local chord
+    section_points: int  # per surface of a section
+
+
+@dataclass(frozen=True)
 class Design:
     name: str
     title: str
@@ -498,6 +594,7 @@ class Design:
     horizontal_tail: SurfaceSpec | None
     vertical_tail: SurfaceSpec | None
     tail_cone_radii: tuple[float, float] | None  # m (front, rear)
+    solids: SolidsSpec
     source: str  # file the design came from, for messages
 
     @property
@@ -536,7 +633,13 @@ def loads(text: str, source: str = "<design>") -> Design:
     import yaml
 
     try:
-        document = yaml.safe_load(text)
+        loader = _strict_safe_loader()(text)  # a SafeLoader subclass: no arbitrary objects
+        try:
+            document = loader.get_single_data()
+        finally:
+            loader.dispose()
+    except _DuplicateKey as err:
+        raise InputError(str(err), source=source) from None
     except yaml.YAMLError as err:
         mark = getattr(err, "problem_mark", None)
         where = f"line {mark.line + 1}, column {mark.column + 1}: " if mark else ""
@@ -545,13 +648,48 @@ def loads(text: str, source: str = "<design>") -> Design:
     return from_mapping(document, source=source)
 
 
+class _DuplicateKey(ValueError):
+    pass
+
+
+@lru_cache(maxsize=1)
+def _strict_safe_loader():
+    """yaml.SafeLoader that refuses a key written twice in one mapping (PyYAML would keep the
+    last one silently, which hides a typo in a design file)."""
+    import yaml
+
+    class StrictSafeLoader(yaml.SafeLoader):
+        def construct_mapping(self, node, deep=False):
+            seen = set()
+            for key_node, _ in node.value:
+                key = self.construct_object(key_node, deep=True)
+                if key in seen:
+                    mark = key_node.start_mark
+                    raise _DuplicateKey(
+                        f"line {mark.line + 1}: key {key!r} is written twice in one mapping; "
+                        f"keep one"
+                    )
+                seen.add(key)
+            return super().construct_mapping(node, deep=deep)
+
+    return StrictSafeLoader
+
+
 def from_mapping(document: Any, source: str = "<design>") -> Design:
     """Validate a parsed document with the JSON Schema, convert it, check combinations."""
+    if document is None:
+        raise InputError(
+            "is empty; a design file is a mapping of keys (name, requirements, wing, ...)",
+            source=source,
+        )
     if not isinstance(document, dict):
         raise InputError(
             f"a design file must be a mapping of keys (got {type(document).__name__})",
             source=source,
         )
+    # One JSON-like copy for both checks: YAML dates become text, and aliases that would
+    # expand to a huge tree are refused before anything walks them.
+    document = _plain(document, [MAX_DESIGN_VALUES], source)
     _validate_structure(document, source)
     try:
         raw = DESIGN.parse(document, "")
@@ -573,7 +711,7 @@ def _validate_structure(document: dict[str, Any], source: str) -> None:
     import jsonschema
 
     validator = jsonschema.Draft202012Validator(json_schema())
-    error = jsonschema.exceptions.best_match(validator.iter_errors(_plain(document)))
+    error = jsonschema.exceptions.best_match(validator.iter_errors(document))
     if error is None:
         return
     # The declaration gives the clearer message for the same fault: let it speak first.
@@ -585,12 +723,22 @@ def _validate_structure(document: dict[str, Any], source: str) -> None:
     raise InputError(error.message.splitlines()[0][:200], source=source, path=path or None)
 
 
-def _plain(value: Any) -> Any:
-    """YAML may give dates and other types; make a JSON-like copy for the schema check."""
+def _plain(value: Any, budget: list[int], source: str) -> Any:
+    """YAML may give dates and other types; make a JSON-like copy for the checks.
+
+    ``budget`` holds how many more values may be copied (YAML aliases can make a small file
+    expand into a huge tree)."""
+    budget[0] -= 1
+    if budget[0] < 0:
+        raise InputError(
+            f"holds more than {MAX_DESIGN_VALUES} values (counting repeats made by YAML "
+            "aliases); a design file is much smaller",
+            source=source,
+        )
     if isinstance(value, dict):
-        return {str(k): _plain(v) for k, v in value.items()}
+        return {str(k): _plain(v, budget, source) for k, v in value.items()}
     if isinstance(value, list):
-        return [_plain(v) for v in value]
+        return [_plain(v, budget, source) for v in value]
     if value is None or isinstance(value, (str, int, float, bool)):
         return value
     return json.loads(json.dumps(value, default=str))
@@ -616,6 +764,7 @@ def _build(raw: dict[str, Any], source: str) -> Design:
         horizontal_tail=_surface_spec("horizontal_tail", raw["horizontal_tail"], source),
         vertical_tail=_surface_spec("vertical_tail", raw["vertical_tail"], source),
         tail_cone_radii=(cone["front_radius"], cone["rear_radius"]) if cone else None,
+        solids=SolidsSpec(**raw["solids"]),
         source=source,
     )
 
@@ -730,6 +879,13 @@ def _control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> Co
             source=source,
             path=f"{path}.hinge_at",
         )
+    if abs(c["deflection"]) > c["deflection_range"] + 1e-12:
+        raise InputError(
+            f"must be within the deflection_range of +-{c['deflection_range'] / DEG:g} deg "
+            f"(got {c['deflection'] / DEG:g} deg)",
+            source=source,
+            path=f"{path}.deflection",
+        )
     start, end = c["span_start"], c["span_end"]
     if start[0] == end[0] and start[1] >= end[1]:
         raise InputError(
@@ -746,4 +902,8 @@ def _control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> Co
         hinge=c["hinge"],
         hinge_at=tuple(hinge_at) if is_pair else (hinge_at, hinge_at),
         common_hinge=c["common_hinge"],
+        deflection=c["deflection"],
+        deflection_range=c["deflection_range"],
+        hinge_gap=c["hinge_gap"],
+        side_gap=c["side_gap"],
     )

@@ -10,6 +10,7 @@ plain SI floats with its range checked. Messages name the key path, e.g.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -166,6 +167,7 @@ class Text(Field):
     choices: tuple[str, ...] = ()
     max_length: int = 200
     pattern: str | None = None
+    pattern_words: str = ""  # what the pattern allows, in words, for the message
 
     def schema(self) -> dict[str, Any]:
         body: dict[str, Any] = {"type": "string", "maxLength": self.max_length}
@@ -180,6 +182,12 @@ class Text(Field):
             raise FieldError(path, f"must be text (got {value!r})")
         if self.choices and value not in self.choices:
             raise FieldError(path, f"must be one of {', '.join(self.choices)} (got {value!r})")
+        if len(value) > self.max_length:
+            raise FieldError(path, f"must be at most {self.max_length} characters long")
+        if self.pattern and not re.fullmatch(self.pattern, value):
+            raise FieldError(
+                path, f"must be {self.pattern_words or 'of the documented form'} (got {value!r})"
+            )
         return value
 
 
@@ -294,8 +302,9 @@ class Mapping(Field):
             sub = _join(path, key)
             if key in value and value[key] is not None:
                 out[key] = spec.parse(value[key], sub)
-            elif key in value and value[key] is None and spec.required:
-                raise FieldError(sub, "must have a value (got nothing)")
+            elif key in value and value[key] is None:
+                hint = "" if spec.required else "; leave the key out if it is not wanted"
+                raise FieldError(sub, f"must have a value (got nothing){hint}")
             elif spec.default is not None:
                 out[key] = spec.parse(spec.default, sub)
             elif spec.required:

@@ -219,6 +219,7 @@ def _surface(ss: SurfaceSizing, dirs: tuple, source: str) -> SurfaceLayout:
                     source=source,
                     path=path,
                 )
+        _check_hinge_is_straight(ss, stations, fractions, path, source)
         area = _area_aft(ss, stations, fractions)
         hinge_kind = "common" if spec.common_hinge else spec.hinge
         for side in sides:
@@ -258,6 +259,31 @@ def _surface(ss: SurfaceSizing, dirs: tuple, source: str) -> SurfaceLayout:
     return SurfaceLayout(
         sizing=ss, corners=tuple(corners), controls=tuple(controls), hinge_comparison=comparison
     )
+
+
+def _check_hinge_is_straight(
+    ss: SurfaceSizing, stations: list[float], fractions: list[float], path: str, source: str
+) -> None:
+    """A moving part turns about one straight axis: refuse a hinge line that kinks at a panel
+    break (a constant-fraction hinge across a change of taper or sweep, or any hinge across a
+    change of dihedral). Tolerance: 0.1 % of the local chord."""
+    if len(stations) < 3:
+        return
+    side = "centre" if not ss.planform.symmetric else "right"
+    pts = [_point(ss, side, s, f) for s, f in zip(stations, fractions, strict=True)]
+    a, b = np.array(pts[0]), np.array(pts[-1])
+    axis = (b - a) / np.linalg.norm(b - a)
+    for s, p in zip(stations[1:-1], pts[1:-1], strict=True):
+        d = np.array(p) - a
+        off = float(np.linalg.norm(d - np.dot(d, axis) * axis))
+        if off > 1e-3 * ss.planform.at(s)[1]:
+            raise InputError(
+                f"the hinge line kinks at the panel break {s:.3f} m from the root (by "
+                f"{off * 1000:.1f} mm), so the part could not turn about it; end the control "
+                f"surface at the break, or use hinge: straight on panels of equal dihedral",
+                source=source,
+                path=path.rsplit(".", 1)[0] + ".span_end",
+            )
 
 
 def _resolve_spans(ss: SurfaceSizing, source: str) -> dict[str, tuple[float, float]]:
