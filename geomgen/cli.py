@@ -1,4 +1,4 @@
-"""Command line: ``geomgen size``, ``geomgen schema``, ``geomgen --version``.
+"""Command line: ``geomgen size``, ``geomgen build``, ``geomgen schema``, ``geomgen --version``.
 
 Thin on purpose: parse arguments, call the pipeline, print, map errors to exit codes
 (0 done, 1 geometry could not be built or a check failed, 2 bad input).
@@ -12,10 +12,8 @@ import sys
 from pathlib import Path
 
 from . import __version__
-from .errors import GeomgenError, InputError
-from .output import OutputFolder
-
-PROFILES_DIR = Path(__file__).resolve().parent.parent / "profiles"
+from .errors import GeomgenError
+from .pipeline import run_build, run_size
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -35,30 +33,24 @@ def _parser() -> argparse.ArgumentParser:
         default=None,
         help="unit system of report.md (default: the design's)",
     )
+    build = sub.add_parser(
+        "build", help="size, then loft the solids, cut the control surfaces, export, check"
+    )
+    build.add_argument("design", help="design file (YAML)")
+    build.add_argument("--out", default="out", help="output folder (default: out)")
+    build.add_argument(
+        "--units",
+        choices=("si", "imperial"),
+        default=None,
+        help="unit system of report.md (default: the design's)",
+    )
+    build.add_argument(
+        "--only",
+        default=None,
+        help="comma-separated part names to build, e.g. wing-right,aileron-right",
+    )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p
-
-
-def airfoil_dirs(design_path: Path) -> tuple[Path, ...]:
-    """Where section files are looked up: beside the design, then the shipped profiles/."""
-    return (design_path.resolve().parent, PROFILES_DIR)
-
-
-def run_size(design_path: Path, out_root: Path, units: str | None) -> Path:
-    """Sizing and layout of one design; writes report.json and report.md. Returns the folder."""
-    from . import design as design_module
-    from .layout import lay_out
-    from .report import to_json, to_markdown
-    from .sizing import size
-
-    dirs = airfoil_dirs(design_path)
-    d = design_module.load(design_path)
-    layout = lay_out(size(d, dirs), dirs)
-    system = units or d.units
-    with OutputFolder(out_root / d.name) as folder:
-        folder.write_text("report.json", to_json(layout))
-        folder.write_text("report.md", to_markdown(layout, system))
-    return out_root / d.name
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -73,13 +65,33 @@ def main(argv: list[str] | None = None) -> int:
             folder = run_size(Path(args.design), Path(args.out), args.units)
             print(f"geomgen: wrote {folder / 'report.json'} and {folder / 'report.md'}")
             return 0
+        if args.command == "build":
+            only = None
+            if args.only:
+                only = {n.strip() for n in args.only.split(",") if n.strip()}
+            result = run_build(
+                Path(args.design),
+                Path(args.out),
+                args.units,
+                only,
+                progress=lambda line: print(f"geomgen: {line}", flush=True),
+            )
+            _summary(result)
+            return 0
     except GeomgenError as err:
         print(f"geomgen: error: {err}", file=sys.stderr)
         return err.exit_code
     except KeyboardInterrupt:
         print("geomgen: interrupted; previous outputs left as they were", file=sys.stderr)
         return 130
-    raise InputError(f"unknown command {args.command!r}")  # argparse prevents this
+    raise AssertionError(f"unknown command {args.command!r}")  # argparse prevents this
+
+
+def _summary(result) -> None:
+    print(f"\n{'part':<20} {'volume (cm^3)':>14} {'STL tolerance (mm)':>19}")
+    for name, volume_mm3, deflection in result.parts:
+        print(f"{name:<20} {volume_mm3 / 1000:>14.1f} {deflection:>19.3f}")
+    print(f"\ngeomgen: all {result.checks} checks passed; outputs in {result.folder}")
 
 
 if __name__ == "__main__":

@@ -104,10 +104,25 @@ class Layout:
     def surface(self, key: str) -> SurfaceLayout:
         return next(s for s in self.surfaces if s.key == key)
 
+    @property
+    def part_names(self) -> tuple[str, ...]:
+        """Every part a build makes, in build order."""
+        names = []
+        for s in self.surfaces:
+            for side in s.sides:
+                names.append(fixed_part_name(s.key, side))
+                names += [c.name for c in s.controls if c.side == side]
+        return tuple(names)
+
 
 def part_name(base: str, side: str) -> str:
     """Plain part name with its side, e.g. ``aileron-right``; the fin's parts have no side."""
     return base if side == "centre" else f"{base}-{side}"
+
+
+def fixed_part_name(key: str, side: str) -> str:
+    """Name of what remains of a surface side once its control surfaces are cut free."""
+    return part_name(PART_NAMES[key], side)
 
 
 def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndarray:
@@ -157,9 +172,8 @@ def _section(name: str, dirs: tuple) -> airfoils.Airfoil:
 
 def mean_line_offset(ss: SurfaceSizing, s: float, fraction: float, dirs: tuple = ()) -> float:
     """y/c of the section's mean line (halfway between the surfaces) at a chord fraction."""
-    i = ss.planform.panel_index(s)
+    i, t = ss.planform.section_weight(s)
     a, b = ss.planform.stations[i], ss.planform.stations[i + 1]
-    t = (s - a.s) / (b.s - a.s)
 
     def mid(blend: tuple[str, str, float]) -> float:
         ya = _mid_y(_section(blend[0], dirs), fraction)

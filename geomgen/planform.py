@@ -97,6 +97,21 @@ class Planform:
             a.twist + t * (b.twist - a.twist),
         )
 
+    def section_weight(self, s: float) -> tuple[int, float]:
+        """(i, w): the section at s is (1 - w) x section of stations[i] + w x section of
+        stations[i+1], in unit-chord coordinates.
+
+        A straight-tapered panel is a ruled surface between its end sections: its section at
+        s interpolates the *physical* sections linearly, so the unit-chord shape is weighted
+        by chord, w = t c_b / c(s), not by span fraction t alone (the two differ when both
+        the chord and the section change along the panel).
+        """
+        i = self.panel_index(s)
+        a, b = self.stations[i], self.stations[i + 1]
+        t = (s - a.s) / (b.s - a.s)
+        chord = a.chord + t * (b.chord - a.chord)
+        return i, t * b.chord / chord
+
     def sweep(self, fraction: float, panel: int | None = None) -> float:
         """Sweep angle (rad) of the line at chord ``fraction``; whole surface root-to-tip if
         ``panel`` is None, else of that panel."""

@@ -1,0 +1,208 @@
+"""Self-checks of the built solids with trimesh (the only module that imports it).
+
+Every check records what was measured, what was expected, the tolerance and pass/fail; the
+build writes them to checks.json and fails (exit 1) naming every check that did not pass.
+Lengths in mm, areas in mm^2, volumes in mm^3 (the solids' unit).
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+from pathlib import Path
+
+import numpy as np
+import trimesh
+
+from . import cad
+from .layout import fixed_part_name
+from .sections import volume_from_sections
+from .tolerances import TOLERANCES
+
+MM = cad.MM
+
+
+@dataclass(frozen=True)
+class Check:
+    name: str  # what is checked, e.g. "mesh volume vs solid volume"
+    part: str  # part or surface side it concerns
+    measured: float
+    expected: float
+    tolerance: float  # allowed |measured - expected| / |expected| (relative), or absolute
+    relative: bool
+    unit: str
+    passed: bool
+
+    def as_dict(self) -> dict:
+        return asdict(self)
+
+
+def _rel(name: str, part: str, measured: float, expected: float, tol: float, unit: str) -> Check:
+    ok = bool(np.isfinite(measured) and abs(measured - expected) <= tol * abs(expected))
+    return Check(name, part, float(measured), float(expected), tol, True, unit, ok)
+
+
+def _abs(name: str, part: str, measured: float, expected: float, tol: float, unit: str) -> Check:
+    ok = bool(np.isfinite(measured) and abs(measured - expected) <= tol)
+    return Check(name, part, float(measured), float(expected), tol, False, unit, ok)
+
+
+def _flag(name: str, part: str, ok: bool) -> Check:
+    return Check(name, part, float(ok), 1.0, 0.0, False, "yes/no", bool(ok))
+
+
+def load_mesh(vertices: np.ndarray, faces: np.ndarray) -> trimesh.Trimesh:
+    """A trimesh with coincident vertices merged (faces carry their own copies of edge nodes)."""
+    mesh = trimesh.Trimesh(vertices=vertices, faces=faces, process=True)
+    mesh.merge_vertices()
+    return mesh
+
+
+def projected_area(mesh: trimesh.Trimesh, axis: np.ndarray) -> float:
+    """Area of the mesh's shadow along ``axis`` (mm^2) for a closed surface that the axis
+    crosses twice at most (a wing in plan view, a fin in side view): half the sum of the
+    triangles' |area x cos(normal, axis)|."""
+    return 0.5 * float(np.abs(mesh.area_faces * (mesh.face_normals @ axis)).sum())
+
+
+def mesh_checks(part: str, mesh: trimesh.Trimesh, solid_volume: float) -> list[Check]:
+    """Watertight, consistent winding, positive volume, mesh volume vs the solid's."""
+    t = TOLERANCES
+    return [
+        _flag("mesh is watertight", part, mesh.is_watertight),
+        _flag("mesh winding is consistent", part, mesh.is_winding_consistent),
+        _flag("mesh volume is positive", part, mesh.volume > 0),
+        _rel(
+            "mesh volume vs solid volume",
+            part,
+            mesh.volume,
+            solid_volume,
+            t.mesh_vs_solid_volume,
+            "mm^3",
+        ),
+    ]
+
+
+def stl_checks(part: str, path: Path, solid_volume: float) -> list[Check]:
+    mesh = trimesh.load_mesh(str(path), file_type="stl")
+    return mesh_checks(part, mesh, solid_volume)
+
+
+def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
+    """Checks of every surface side and its control surfaces against the sizing and layout."""
+    t = TOLERANCES
+    d = build.layout.sizing.design
+    points, te = d.solids.section_points, d.solids.te_thickness
+    out: list[Check] = []
+    for sb in build.sides:
+        sl = sb.surface
+        ss = sl.sizing
+        name = fixed_part_name(sl.key, sb.side)
+        whole_volume = cad.volume(sb.whole)
+        expected_volume = volume_from_sections(ss, points, te, dirs) * MM**3
+        out.append(
+            _rel(
+                "surface volume vs integral of section areas",
+                name,
+                whole_volume,
+                expected_volume,
+                t.volume_vs_sections,
+                "mm^3",
+            )
+        )
+        chord_min = min(st.chord for st in ss.planform.stations) * MM
+        deflection = d.solids.tessellation * chord_min
+        whole_mesh = load_mesh(*cad.mesh_arrays(sb.whole, deflection))
+        out += mesh_checks(f"{name} (uncut)", whole_mesh, whole_volume)
+        view = np.array([0.0, 1.0, 0.0]) if sl.key == "vertical_tail" else np.array([0, 0, 1.0])
+        out.append(
+            _rel(
+                "projected area vs sizing area",
+                name,
+                projected_area(whole_mesh, view),
+                ss.planform.side_area * MM**2,
+                t.projected_area,
+                "mm^2",
+            )
+        )
+        fixed_volume = cad.volume(sb.fixed)
+        for cb in sb.controls:
+            c = cb.layout
+            moving_volume = cad.volume(cb.moving_undeflected)
+            # gaps: the cove's volume minus the moving part's, between 0 and a few percent
+            gap = cb.cut_region_volume - moving_volume
+            out.append(
+                _abs(
+                    "gap volume (cove minus moving part) / moving part",
+                    c.name,
+                    gap / moving_volume,
+                    t.max_gap_fraction / 2,
+                    t.max_gap_fraction / 2,
+                    "1",
+                )
+            )
+            aft_mesh = load_mesh(*cad.mesh_arrays(cb.aft_portion, deflection))
+            out.append(
+                _rel(
+                    "control area aft of the hinge vs report",
+                    c.name,
+                    projected_area(aft_mesh, view),
+                    c.area * MM**2,
+                    t.projected_area,
+                    "mm^2",
+                )
+            )
+            point, normal = cb.hinge_plane
+            local_chord = min(ss.planform.at(c.s_start)[1], ss.planform.at(c.s_end)[1]) * MM
+            distances = cad.face_points_on_plane(cb.aft_portion, point, normal, 1e-3 * local_chord)
+            worst = max(distances) if distances else float("inf")
+            out.append(
+                _abs(
+                    "cut face lies on the hinge plane",
+                    c.name,
+                    worst,
+                    0.0,
+                    t.hinge_plane * local_chord,
+                    "mm",
+                )
+            )
+        if sb.controls:
+            # the fixed part plus what the coves took out is the uncut surface (no overlap, no
+            # loss); the coves minus the moving parts are the gaps
+            moving_total = sum(cad.volume(cb.moving_undeflected) for cb in sb.controls)
+            gaps = sum(cb.cut_region_volume for cb in sb.controls) - moving_total
+            out.append(
+                _rel(
+                    "fixed + moving parts vs uncut surface minus gaps",
+                    name,
+                    fixed_volume + moving_total,
+                    whole_volume - gaps,
+                    t.boolean_consistency,
+                    "mm^3",
+                )
+            )
+    return out
+
+
+def step_checks(step_names_volumes: dict[str, float], parts: tuple[cad.Part, ...]) -> list[Check]:
+    """The STEP file read back holds the same parts with the same volumes."""
+    t = TOLERANCES
+    out = [
+        _flag(
+            "STEP holds exactly the built parts",
+            "STEP",
+            sorted(step_names_volumes) == sorted(p.name for p in parts),
+        )
+    ]
+    for p in parts:
+        if p.name in step_names_volumes:
+            out.append(
+                _rel(
+                    "STEP read-back volume",
+                    p.name,
+                    step_names_volumes[p.name],
+                    cad.volume(p.shape),
+                    t.step_readback,
+                    "mm^3",
+                )
+            )
+    return out

@@ -1,0 +1,125 @@
+"""The stages in order, for the CLI: size (design -> reports) and build (-> solids, exports,
+checks). Each function returns what it wrote; errors are raised, never printed here."""
+
+from __future__ import annotations
+
+import json
+import time
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+
+from .errors import GeometryError
+from .output import OutputFolder
+
+PROFILES_DIR = Path(__file__).resolve().parent.parent / "profiles"
+
+
+def airfoil_dirs(design_path: Path) -> tuple[Path, ...]:
+    """Where section files are looked up: beside the design, then the shipped profiles/."""
+    return (design_path.resolve().parent, PROFILES_DIR)
+
+
+def _size(design_path: Path):
+    from . import design as design_module
+    from .layout import lay_out
+    from .sizing import size
+
+    dirs = airfoil_dirs(design_path)
+    d = design_module.load(design_path)
+    return d, lay_out(size(d, dirs), dirs), dirs
+
+
+def _write_reports(folder: OutputFolder, layout, system: str) -> None:
+    from .report import to_json, to_markdown
+
+    folder.write_text("report.json", to_json(layout))
+    folder.write_text("report.md", to_markdown(layout, system))
+
+
+def run_size(design_path: Path, out_root: Path, units: str | None) -> Path:
+    """Sizing and layout of one design; writes report.json and report.md. Returns the folder."""
+    d, layout, _ = _size(design_path)
+    with OutputFolder(out_root / d.name) as folder:
+        _write_reports(folder, layout, units or d.units)
+    return out_root / d.name
+
+
+@dataclass(frozen=True)
+class BuildResult:
+    folder: Path
+    parts: tuple[tuple[str, float, float], ...]  # name, volume (mm^3), STL deflection (mm)
+    checks: int  # number of checks run (all passed)
+
+
+def run_build(
+    design_path: Path,
+    out_root: Path,
+    units: str | None,
+    only: set[str] | None = None,
+    progress: Callable[[str], None] = lambda _: None,
+) -> BuildResult:
+    """Size, lay out, build the solids, export STEP and STL, check everything."""
+    t0 = time.perf_counter()
+
+    def stage(text: str) -> None:
+        progress(f"[{time.perf_counter() - t0:6.1f} s] {text}")
+
+    d, layout, dirs = _size(design_path)
+    stage("sized and laid out")
+    if only is not None:
+        known = set(layout.part_names)
+        unknown = sorted(only - known)
+        if unknown:
+            from .errors import InputError
+
+            raise InputError(
+                f"unknown part {unknown[0]!r}; parts of this design: {', '.join(sorted(known))}",
+                path="--only",
+            )
+    from . import cad, checks
+
+    built = cad.build(layout, dirs, only)
+    stage(f"built {len(built.parts)} solids")
+    results: list = []
+    part_rows = []
+    with OutputFolder(out_root / d.name) as folder:
+        _write_reports(folder, layout, units or d.units)
+        step_path = folder.path(f"{d.name}.step")
+        cad.write_step(built.parts, step_path, d.name)
+        stage(f"wrote {step_path.name}")
+        for p in built.parts:
+            deflection = d.solids.tessellation * p.local_chord_min
+            stl = folder.path(f"stl/{p.name}.stl")
+            cad.write_stl(p.shape, stl, deflection)
+            solid_volume = cad.volume(p.shape)
+            results += checks.stl_checks(p.name, stl, solid_volume)
+            part_rows.append((p.name, solid_volume, deflection))
+        stage(f"wrote {len(built.parts)} STL files")
+        results += checks.surface_checks(built, dirs)
+        results += checks.step_checks(cad.read_step(step_path), built.parts)
+        stage(f"ran {len(results)} checks")
+        failed = tuple(f"{c.part}: {c.name}" for c in results if not c.passed)
+        if failed:
+            # the new outputs are discarded (the previous ones stay); the failing checks are
+            # kept beside them for inspection
+            report = out_root / f"{d.name}.failed-checks.json"
+            report.write_text(_checks_json(results), encoding="utf-8")
+            raise GeometryError(
+                f"{len(failed)} check(s) failed: " + "; ".join(failed) + f" (see {report})",
+                operation="self-check",
+            )
+        folder.write_text("checks.json", _checks_json(results))
+    return BuildResult(out_root / d.name, tuple(part_rows), len(results))
+
+
+def _checks_json(results) -> str:
+    from .report import CAUTION
+
+    data = {
+        "caution": CAUTION,
+        "passed": all(c.passed for c in results),
+        "count": len(results),
+        "checks": [c.as_dict() for c in results],
+    }
+    return json.dumps(data, indent=2) + "\n"

@@ -1,0 +1,27 @@
+"""Every tolerance of the self-checks in one place; the checks and the tests import these, so
+no limit is written twice."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Tolerances:
+    #: mesh volume vs OpenCASCADE volume, relative
+    mesh_vs_solid_volume: float = 0.005
+    #: a surface's solid volume vs the integral of its section areas along the span, relative
+    volume_vs_sections: float = 0.01
+    #: plan-view (fin: side-view) projected area vs the sized area, relative
+    projected_area: float = 0.005
+    #: volumes that booleans must conserve (fixed + cut region = whole), relative
+    boolean_consistency: float = 1e-6
+    #: the gaps (hinge gap, side gaps, cove) may take at most this fraction of a moving part
+    max_gap_fraction: float = 0.10
+    #: cut-face points off the hinge plane, as a fraction of the local chord
+    hinge_plane: float = 1e-6
+    #: STEP read back vs the built solids, relative volume
+    step_readback: float = 1e-6
+
+
+TOLERANCES = Tolerances()
