@@ -280,12 +280,26 @@ def resample(af: Airfoil, points: int) -> Airfoil:
     return Airfoil(af.name, out[0], out[1])
 
 
+def _same_grid(a: Airfoil, b: Airfoil, tol: float = 1e-3) -> bool:
+    """True if both sections have their points at the same chord fractions (within tol)."""
+    return (
+        len(a.upper) == len(b.upper)
+        and len(a.lower) == len(b.lower)
+        and len(a.upper) >= 41
+        and bool(np.all(np.abs(a.upper[:, 0] - b.upper[:, 0]) < tol))
+        and bool(np.all(np.abs(a.lower[:, 0] - b.lower[:, 0]) < tol))
+    )
+
+
 def blend(a: Airfoil, b: Airfoil, w: float) -> Airfoil:
     """Linear blend of two sections on a common grid: w = 0 gives `a`, w = 1 gives `b`."""
     if not 0.0 <= w <= 1.0:
         raise InputError(f"blend weight must be in [0, 1] (got {w})", source=f"{a.name}/{b.name}")
     n = max(len(a.upper), len(a.lower), len(b.upper), len(b.lower), 41)
-    ra, rb = resample(a, n), resample(b, n)
+    if _same_grid(a, b):  # already on one grid (e.g. both from resample(.., n)): pair by index
+        ra, rb = a, b
+    else:
+        ra, rb = resample(a, n), resample(b, n)
     name = a.name if w == 0.0 else b.name if w == 1.0 else f"{a.name} {1 - w:g} + {b.name} {w:g}"
     return Airfoil(name, (1 - w) * ra.upper + w * rb.upper, (1 - w) * ra.lower + w * rb.lower)
 

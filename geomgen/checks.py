@@ -110,9 +110,10 @@ def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
             )
         )
         chord_min = min(st.chord for st in ss.planform.stations) * MM
-        deflection = d.solids.tessellation * chord_min
+        deflection = d.solids.tessellation * chord_min * t.area_mesh_coarsening
         whole_mesh = load_mesh(*cad.mesh_arrays(sb.whole, deflection))
-        out += mesh_checks(f"{name} (uncut)", whole_mesh, whole_volume)
+        out.append(_flag("mesh of the uncut surface is watertight", name,
+                         whole_mesh.is_watertight))
         view = np.array([0.0, 1.0, 0.0]) if sl.key == "vertical_tail" else np.array([0, 0, 1.0])
         out.append(
             _rel(

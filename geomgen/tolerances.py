@@ -20,8 +20,11 @@ class Tolerances:
     max_gap_fraction: float = 0.10
     #: cut-face points off the hinge plane, as a fraction of the local chord
     hinge_plane: float = 1e-6
-    #: STEP read back vs the built solids, relative volume
-    step_readback: float = 1e-6
+    #: STEP read back vs the built solids, relative volume (read back with the fast rule)
+    step_readback: float = 1e-4
+    #: meshes used only for the projected-area checks are this many times coarser than the
+    #: STL tolerance (a chordal deviation changes a projected area to second order only)
+    area_mesh_coarsening: float = 4.0
 
 
 TOLERANCES = Tolerances()
