@@ -131,6 +131,28 @@ def _control(kind_word: str) -> Mapping:
     )
 
 
+_DRAWINGS = Mapping(
+    description="settings of drawings and 1:1 section templates",
+    default={},
+    fields=(
+        (
+            "template_spacing",
+            Quantity(
+                dimension="length",
+                bounds=between(0.01, 10.0),
+                optional=True,
+                description="spanwise spacing of extra section templates between the root, "
+                "panel breaks and tip (none if left out)",
+            ),
+        ),
+        (
+            "paper",
+            Text(choices=("A4", "Letter"), default="A4", description="page size of the PDF"),
+        ),
+    ),
+)
+
+
 _SOLIDS = Mapping(
     description="settings of the solids, exports and self-checks",
     default={},
@@ -386,6 +408,14 @@ def _surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, 
                 fields=tuple((c, _control(c)) for c in controls),
             ),
         ),
+        (
+            "spar_at",
+            Number(
+                bounds=_FRACTION,
+                optional=True,
+                description="chord fraction of the main spar, marked on section templates",
+            ),
+        ),
     ]
     return Mapping(description=which, optional=tail, fields=tuple(planform))
 
@@ -476,6 +506,7 @@ DESIGN = Mapping(
             _surface("vertical tail, one-sided", tail=True, fin=True, controls=("rudder",)),
         ),
         ("solids", _SOLIDS),
+        ("drawings", _DRAWINGS),
         (
             "tail_cone",
             Mapping(
@@ -569,6 +600,7 @@ class SurfaceSpec:
     apex_z: float
     panels: tuple[PanelSpec, ...]
     controls: tuple[ControlSpec, ...]
+    spar_at: float | None  # chord fraction of the main spar
 
     @property
     def symmetric(self) -> bool:
@@ -584,6 +616,12 @@ class SolidsSpec:
 
 
 @dataclass(frozen=True)
+class DrawingsSpec:
+    template_spacing: float | None  # m, spanwise spacing of extra templates
+    paper: str  # A4 | Letter
+
+
+@dataclass(frozen=True)
 class Design:
     name: str
     title: str
@@ -595,6 +633,7 @@ class Design:
     vertical_tail: SurfaceSpec | None
     tail_cone_radii: tuple[float, float] | None  # m (front, rear)
     solids: SolidsSpec
+    drawings: DrawingsSpec
     source: str  # file the design came from, for messages
 
     @property
@@ -765,6 +804,7 @@ def _build(raw: dict[str, Any], source: str) -> Design:
         vertical_tail=_surface_spec("vertical_tail", raw["vertical_tail"], source),
         tail_cone_radii=(cone["front_radius"], cone["rear_radius"]) if cone else None,
         solids=SolidsSpec(**raw["solids"]),
+        drawings=DrawingsSpec(**raw["drawings"]),
         source=source,
     )
 
@@ -812,6 +852,7 @@ def _surface_spec(key: str, raw: dict[str, Any] | None, source: str) -> SurfaceS
         apex_z=raw["apex"]["z"],
         panels=panels,
         controls=controls,
+        spar_at=raw["spar_at"],
     )
 
 
