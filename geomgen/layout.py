@@ -362,3 +362,42 @@ def _area_aft(ss: SurfaceSizing, stations: list[float], fractions: list[float]) 
     pf = ss.planform
     aft = [(1 - f) * pf.at(s)[1] for s, f in zip(stations, fractions, strict=True)]
     return float(np.trapezoid(aft, stations))
+
+
+@dataclass(frozen=True)
+class CornerLabel:
+    """A short key for one corner point, shared by drawings, tables and reports."""
+
+    key: str  # e.g. WR1 (wing, right, first), HL3, V2
+    surface: str  # wing | horizontal_tail | vertical_tail
+    side: str  # right | left | centre
+    where: str  # e.g. "LE root", "LE panel 1 outer", "TE tip"
+    point: Point  # aircraft frame, m
+
+
+_LETTERS = {"wing": "W", "horizontal_tail": "H", "vertical_tail": "V"}
+_SIDE_LETTERS = {"right": "R", "left": "L", "centre": ""}
+
+
+def corner_labels(layout: Layout) -> tuple[CornerLabel, ...]:
+    """Every distinct corner point with a key: per surface side, the leading edge from root to
+    tip, then the trailing edge from tip back to root (the outline in drawing order)."""
+    out: list[CornerLabel] = []
+    for sl in layout.surfaces:
+        for side in sl.sides:
+            panels = [c for c in sl.corners if c.side == side]
+            n = len(panels)
+
+            def station(i: int, n: int = n) -> str:
+                return "root" if i == 0 else "tip" if i == n else f"break {i}"
+
+            outline = [(f"LE {station(0)}", panels[0].le_inner)]
+            outline += [(f"LE {station(i + 1)}", c.le_outer) for i, c in enumerate(panels)]
+            outline += [(f"TE {station(n)}", panels[-1].te_outer)]
+            outline += [(f"TE {station(i)}", panels[i].te_inner) for i in range(n - 1, -1, -1)]
+            prefix = _LETTERS[sl.key] + _SIDE_LETTERS[side]
+            out += [
+                CornerLabel(f"{prefix}{k}", sl.key, side, where, point)
+                for k, (where, point) in enumerate(outline, start=1)
+            ]
+    return tuple(out)
