@@ -156,8 +156,11 @@ OUTPUT_UNITS: dict[str, dict[str, tuple[str, float]]] = {
     },
 }
 
-#: SI unit symbol of each kind of quantity, as written into report.json.
-SI_UNITS: dict[str, str] = {kind: unit for kind, (unit, _) in OUTPUT_UNITS["si"].items()}
+#: SI unit symbol of each kind of quantity, as written into report.json (values unscaled:
+#: angles stay in radians there; the human-readable "si" system shows them in degrees).
+SI_UNITS: dict[str, str] = {
+    kind: ("rad" if kind == "angle" else unit) for kind, (unit, _) in OUTPUT_UNITS["si"].items()
+}
 
 
 def to_output(value_si: float, kind: str, system: str) -> tuple[float, str]:

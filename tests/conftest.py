@@ -1,6 +1,12 @@
 """Shared fixtures."""
 
+from __future__ import annotations
+
+import contextlib
+import io
+from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import pytest
 from designs import DEMO
@@ -9,3 +15,53 @@ from designs import DEMO
 @pytest.fixture(scope="session")
 def demo_path() -> Path:
     return DEMO
+
+
+@dataclass(frozen=True)
+class CliRun:
+    """One in-process ``geomgen build`` run: exit code, printed text, outputs, and the
+    ``cad.Build`` the pipeline made (caught on its way through, so tests can look at the
+    in-memory solids without building them a second time)."""
+
+    code: int
+    stdout: str
+    stderr: str
+    out_root: Path
+    build: Any  # geomgen.cad.Build, or None when the run stopped before building
+
+
+def run_build_cli(argv: list[str], out_root: Path) -> CliRun:
+    """``geomgen build ARGV --out OUT_ROOT`` in-process, catching the Build object."""
+    # imported here: cadquery costs ~2 s, and collecting the fast tests must not pay for it
+    from geomgen import cad, cli
+
+    caught: dict[str, Any] = {}
+    real_build = cad.build
+
+    def spy(*args: Any, **kwargs: Any) -> Any:
+        caught["build"] = real_build(*args, **kwargs)
+        return caught["build"]
+
+    out, err = io.StringIO(), io.StringIO()
+    with (
+        pytest.MonkeyPatch.context() as mp,
+        contextlib.redirect_stdout(out),
+        contextlib.redirect_stderr(err),
+    ):
+        mp.setattr(cad, "build", spy)
+        code = cli.main(["build", *argv, "--out", str(out_root)])
+    return CliRun(code, out.getvalue(), err.getvalue(), out_root, caught.get("build"))
+
+
+@pytest.fixture(scope="session")
+def demo_build(tmp_path_factory: pytest.TempPathFactory) -> CliRun:
+    """The whole demo built once per session (about 25 s): every part, STEP, STL, checks."""
+    return run_build_cli([str(DEMO)], tmp_path_factory.mktemp("demo-build"))
+
+
+@pytest.fixture(scope="session")
+def demo_only_aileron_right(tmp_path_factory: pytest.TempPathFactory) -> CliRun:
+    """The demo built with ``--only aileron-right`` (the wing's right side, about 8 s)."""
+    return run_build_cli(
+        [str(DEMO), "--only", "aileron-right"], tmp_path_factory.mktemp("demo-only")
+    )

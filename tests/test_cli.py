@@ -270,3 +270,13 @@ def test_version(capsys) -> None:
         main(["--version"])
     assert exit_info.value.code == 0
     assert capsys.readouterr().out.strip() == f"geomgen {geomgen.__version__}"
+
+
+def test_angles_in_report_json_are_radians(si_reports) -> None:
+    # report.json is SI: the demo's "2.5 deg" dihedral is 2.5 x pi/180 rad (definition of the
+    # degree); the human-readable report.md shows degrees.
+    data = si_reports[0]
+    dihedral = data["surfaces"]["wing"]["dihedral"]
+    assert dihedral["unit"] == "rad"
+    assert dihedral["value"] == pytest.approx(2.5 * math.pi / 180, rel=1e-12)
+    assert "| dihedral | 2.50 deg |" in si_reports[1]
