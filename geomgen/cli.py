@@ -49,6 +49,11 @@ def _parser() -> argparse.ArgumentParser:
         default=None,
         help="comma-separated part names to build, e.g. wing-right,aileron-right",
     )
+    size.add_argument(
+        "--no-drawings",
+        action="store_true",
+        help="reports only: no three-view, DXF or report.html (fastest)",
+    )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p
 
@@ -62,8 +67,10 @@ def main(argv: list[str] | None = None) -> int:
             print(json.dumps(json_schema(), indent=2))
             return 0
         if args.command == "size":
-            folder = run_size(Path(args.design), Path(args.out), args.units)
-            print(f"geomgen: wrote {folder / 'report.json'} and {folder / 'report.md'}")
+            folder = run_size(
+                Path(args.design), Path(args.out), args.units, drawings=not args.no_drawings
+            )
+            print(f"geomgen: wrote the reports and drawings in {folder}")
             return 0
         if args.command == "build":
             only = None

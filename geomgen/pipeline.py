@@ -37,11 +37,33 @@ def _write_reports(folder: OutputFolder, layout, system: str) -> None:
     folder.write_text("report.md", to_markdown(layout, system))
 
 
-def run_size(design_path: Path, out_root: Path, units: str | None) -> Path:
-    """Sizing and layout of one design; writes report.json and report.md. Returns the folder."""
-    d, layout, _ = _size(design_path)
+def _write_drawings(folder: OutputFolder, layout, system: str, dirs: tuple) -> str:
+    """Three-view (SVG, PNG) and the shop DXF files; returns the SVG text for report.html."""
+    from .drawing import three_view
+
+    svg = folder.path("three-view.svg")
+    three_view(layout, svg, folder.path("three-view.png"), system)
+    _write_shop_files(folder, layout, dirs)
+    return svg.read_text(encoding="utf-8")
+
+
+def _write_shop_files(folder: OutputFolder, layout, dirs: tuple) -> None:
+    """DXF files 1:1 in mm: plan view, one planform per surface, section templates."""
+    return None
+
+
+def run_size(design_path: Path, out_root: Path, units: str | None, drawings: bool = True) -> Path:
+    """Sizing and layout of one design; writes report.json and report.md, and unless
+    ``drawings`` is False the three-view, the DXF files and report.html. Returns the folder."""
+    d, layout, dirs = _size(design_path)
+    system = units or d.units
     with OutputFolder(out_root / d.name) as folder:
-        _write_reports(folder, layout, units or d.units)
+        _write_reports(folder, layout, system)
+        if drawings:
+            from .html_report import write_html
+
+            svg = _write_drawings(folder, layout, system, dirs)
+            write_html(layout, folder.path("report.html"), svg=svg, units=system)
     return out_root / d.name
 
 
@@ -83,8 +105,11 @@ def run_build(
     stage(f"built {len(built.parts)} solids")
     results: list = []
     part_rows = []
+    system = units or d.units
     with OutputFolder(out_root / d.name) as folder:
-        _write_reports(folder, layout, units or d.units)
+        _write_reports(folder, layout, system)
+        svg = _write_drawings(folder, layout, system, dirs)
+        stage("wrote the reports and drawings")
         step_path = folder.path(f"{d.name}.step")
         cad.write_step(built.parts, step_path, d.name)
         stage(f"wrote {step_path.name}")
@@ -109,7 +134,23 @@ def run_build(
                 f"{len(failed)} check(s) failed: " + "; ".join(failed) + f" (see {report})",
                 operation="self-check",
             )
-        folder.write_text("checks.json", _checks_json(results))
+        checks_text = _checks_json(results)
+        folder.write_text("checks.json", checks_text)
+        from .html_report import write_html
+
+        meshes = {
+            p.name: cad.mesh_arrays(p.shape, d.solids.tessellation * p.local_chord_min)
+            for p in built.parts
+        }
+        write_html(
+            layout,
+            folder.path("report.html"),
+            checks=json.loads(checks_text),
+            svg=svg,
+            meshes=meshes,
+            units=system,
+        )
+        stage("wrote report.html")
     return BuildResult(out_root / d.name, tuple(part_rows), len(results))
 
 

@@ -53,7 +53,7 @@ def si_reports(tmp_path_factory: pytest.TempPathFactory) -> tuple[dict[str, Any]
     out = tmp_path_factory.mktemp("si")
     with pytest.MonkeyPatch.context() as mp:
         mp.chdir(ROOT)
-        folder = run_size(out)
+        folder = run_size(out, "--no-drawings")
     report = json.loads((folder / "report.json").read_text(encoding="utf-8"))
     return report, (folder / "report.md").read_text(encoding="utf-8")
 
@@ -63,7 +63,7 @@ def imperial_markdown(tmp_path_factory: pytest.TempPathFactory) -> str:
     out = tmp_path_factory.mktemp("imperial")
     with pytest.MonkeyPatch.context() as mp:
         mp.chdir(ROOT)
-        folder = run_size(out, "--units", "imperial")
+        folder = run_size(out, "--units", "imperial", "--no-drawings")
     return (folder / "report.md").read_text(encoding="utf-8")
 
 
@@ -76,12 +76,21 @@ def _in_repository(monkeypatch: pytest.MonkeyPatch) -> None:
 # --- geomgen size -------------------------------------------------------------------------------
 
 
-def test_size_writes_both_reports(tmp_path: Path, capsys) -> None:
+#: what `geomgen size` writes (the drawings and shop files need no CAD kernel)
+SIZE_OUTPUTS = {"report.json", "report.md", "report.html", "three-view.svg", "three-view.png"}
+
+
+def test_size_writes_reports_and_drawings(tmp_path: Path, capsys) -> None:
     folder = run_size(tmp_path / "out")
-    assert sorted(p.name for p in folder.iterdir()) == ["report.json", "report.md"]
+    assert {p.name for p in folder.iterdir()} >= SIZE_OUTPUTS
     captured = capsys.readouterr()
     assert captured.err == ""
-    assert "report.json" in captured.out and "report.md" in captured.out
+    assert str(folder) in captured.out
+
+
+def test_size_without_drawings_writes_the_reports_only(tmp_path: Path) -> None:
+    folder = run_size(tmp_path / "out", "--no-drawings")
+    assert sorted(p.name for p in folder.iterdir()) == ["report.json", "report.md"]
 
 
 def test_report_json_carries_the_caution(si_reports) -> None:
@@ -220,12 +229,12 @@ def test_size_does_not_import_the_cad_kernel(tmp_path: Path) -> None:
 
 def test_rerun_replaces_outputs_and_leaves_no_temporary_folders(tmp_path: Path) -> None:
     out = tmp_path / "out"
-    folder = run_size(out)
+    folder = run_size(out, "--no-drawings")
     stale = folder / "stale-from-an-older-run.txt"
     stale.write_text("old", encoding="utf-8")
     first = (folder / "report.json").read_text(encoding="utf-8")
 
-    assert run_size(out) == folder
+    assert run_size(out, "--no-drawings") == folder
 
     assert not stale.exists()
     assert sorted(p.name for p in folder.iterdir()) == ["report.json", "report.md"]
