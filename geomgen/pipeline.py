@@ -49,7 +49,11 @@ def _write_drawings(folder: OutputFolder, layout, system: str, dirs: tuple) -> s
 
 def _write_shop_files(folder: OutputFolder, layout, dirs: tuple) -> None:
     """DXF files 1:1 in mm: plan view, one planform per surface, section templates."""
-    return None
+    from .shopfiles import write_plan_dxf, write_planform_dxfs, write_template_dxf
+
+    write_plan_dxf(layout, folder.path("dxf/plan.dxf"))
+    write_planform_dxfs(layout, folder.path("dxf/plan.dxf").parent)
+    write_template_dxf(layout, folder.path("dxf/templates.dxf"), dirs)
 
 
 def run_size(design_path: Path, out_root: Path, units: str | None, drawings: bool = True) -> Path:
@@ -109,7 +113,10 @@ def run_build(
     with OutputFolder(out_root / d.name) as folder:
         _write_reports(folder, layout, system)
         svg = _write_drawings(folder, layout, system, dirs)
-        stage("wrote the reports and drawings")
+        from .templates import write_template_pdf
+
+        write_template_pdf(layout, folder.path("templates.pdf"), dirs)
+        stage("wrote the reports, drawings, DXF files and 1:1 templates")
         step_path = folder.path(f"{d.name}.step")
         cad.write_step(built.parts, step_path, d.name)
         stage(f"wrote {step_path.name}")

@@ -20,6 +20,11 @@ PURE = [
     "layout.py",
     "airfoils.py",
     "report.py",
+    "sections.py",
+    "drawing.py",
+    "shopfiles.py",
+    "templates.py",
+    "html_report.py",
 ]
 
 

@@ -77,7 +77,14 @@ def _in_repository(monkeypatch: pytest.MonkeyPatch) -> None:
 
 
 #: what `geomgen size` writes (the drawings and shop files need no CAD kernel)
-SIZE_OUTPUTS = {"report.json", "report.md", "report.html", "three-view.svg", "three-view.png"}
+SIZE_OUTPUTS = {
+    "report.json",
+    "report.md",
+    "report.html",
+    "three-view.svg",
+    "three-view.png",
+    "dxf",
+}
 
 
 def test_size_writes_reports_and_drawings(tmp_path: Path, capsys) -> None:

@@ -1,0 +1,622 @@
+"""Section templates: the sections a surface is lofted through, drawn at true scale (1:1, mm)
+for the shop, and written as a multi-page PDF on A4 or Letter paper.
+
+A template lies in the section's own plane: x runs aft from the leading edge along the chord
+line, y is perpendicular to it (up for the wing and the horizontal tail, to starboard for the
+fin), both in mm. The outline is ``sections.unit_section`` times the local chord, with the
+design's trailing-edge thickness and point count, so it is the section the solid is lofted
+through. Templates sit at the root, every panel break, the tip and every
+``drawings.template_spacing`` from the root (spanwise positions are projected, as everywhere in
+geomgen).
+
+The geometry (strokes and notes in mm) is shared with ``shopfiles.write_template_dxf``; only
+:func:`write_template_pdf` imports matplotlib, and only when it is called.
+"""
+
+from __future__ import annotations
+
+import math
+import textwrap
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from .layout import PART_NAMES, Layout, SurfaceLayout
+from .report import CAUTION
+from .sections import unit_section
+from .sizing import SurfaceSizing
+
+#: Paper sizes, portrait (mm): ISO 216 A4 and ANSI Letter (8.5 in x 11 in, 25.4 mm per inch).
+PAPER_MM = {"A4": (210.0, 297.0), "Letter": (215.9, 279.4)}
+#: Page layout (mm): blank margin all round, bands for the page label and the check bar.
+MARGIN = 10.0
+HEADER = 19.0
+FOOTER = 21.0
+#: Tiles of a section too large for one page overlap by this much (mm).
+OVERLAP = 20.0
+#: Length of the check bar (mm).
+CHECK_BAR = 100.0
+PT_PER_MM = 72.0 / 25.4  # 72 pt per inch, 25.4 mm per inch (both exact)
+
+#: Gap between a section's outline and the ends of its leading- and trailing-edge marks (mm).
+EDGE_MARK_REACH = 6.0
+#: How far hinge and spar marks stand beyond the surfaces (mm).
+INNER_MARK_REACH = 4.0
+#: Text heights (mm).
+TEXT = 3.0
+SMALL_TEXT = 2.2
+
+# Spanwise letter in template names: y from the plane of symmetry, h above the fin root.
+_AXIS = {"wing": "y", "horizontal_tail": "y", "vertical_tail": "h"}
+_SURFACE_WORDS = {"wing": "wing", "horizontal_tail": "horizontal tail", "vertical_tail": "fin"}
+
+
+@dataclass(frozen=True)
+class Stroke:
+    """A polyline of a drawing (mm). ``kind``: outline, chord, edge, hinge, spar, cross."""
+
+    kind: str
+    points: tuple[tuple[float, float], ...]
+    closed: bool = False
+
+
+@dataclass(frozen=True)
+class Note:
+    """A line of text: ``at`` is the left end (align left) or the middle (align centre) of its
+    baseline, ``height`` the letter height (mm)."""
+
+    kind: str  # label, edge, hinge, spar, cross
+    text: str
+    at: tuple[float, float]
+    height: float = TEXT
+    align: str = "left"  # left | centre
+
+    def box(self) -> tuple[float, float, float, float]:
+        """Rough extent (x0, y0, x1, y1) in mm: sans-serif letters average 0.6 of the height."""
+        w = 0.6 * self.height * len(self.text)
+        x0 = self.at[0] - (w / 2 if self.align == "centre" else 0.0)
+        return (x0, self.at[1] - 0.3 * self.height, x0 + w, self.at[1] + self.height)
+
+
+@dataclass(frozen=True)
+class HingeMark:
+    control: str  # e.g. flap-right, rudder
+    fraction: float  # local chord fraction of the hinge line
+
+
+@dataclass(frozen=True, eq=False)
+class SectionTemplate:
+    """One section template in its own plane (mm, x aft from the LE along the chord line)."""
+
+    surface: str  # wing | horizontal_tail | vertical_tail
+    name: str  # e.g. wing-y0600, fin-h0250 (DXF layer name, page label)
+    s: float  # m, spanwise position from the root (projected)
+    chord: float  # m
+    angle: float  # rad, chord line to the x axis: incidence + twist (nose up / LE to starboard)
+    section: str  # name of the section (or blend)
+    hinges: tuple[HingeMark, ...]
+    spar: float | None  # chord fraction of the spar mark
+    label: tuple[str, ...]  # lines naming the template (also drawn as the "label" notes)
+    upper: np.ndarray  # (N, 2) mm, LE -> TE
+    lower: np.ndarray  # (N, 2) mm, LE -> TE
+    strokes: tuple[Stroke, ...]
+    notes: tuple[Note, ...]
+
+    def surfaces_at(self, x: float) -> tuple[float, float]:
+        """(lower, upper) y of the section at chord position x (mm); the chord line's y twice
+        outside the section."""
+        if not self.upper[:, 0].min() <= x <= self.upper[-1, 0]:
+            return (0.0, 0.0)
+        return (
+            _surface_at(self.lower[:, 0], self.lower[:, 1], x),
+            _surface_at(self.upper[:, 0], self.upper[:, 1], x),
+        )
+
+    def extent(self, labels: bool = True, pad: float = 0.0) -> tuple[float, float, float, float]:
+        """(x0, y0, x1, y1) of everything drawn, text included (mm), grown by ``pad``; without
+        the label lines if ``labels`` is False."""
+        pts = np.concatenate([np.asarray(s.points) for s in self.strokes])
+        boxes = np.array([n.box() for n in self.notes if labels or n.kind != "label"])
+        return (
+            float(min(pts[:, 0].min(), boxes[:, 0].min())) - pad,
+            float(min(pts[:, 1].min(), boxes[:, 1].min())) - pad,
+            float(max(pts[:, 0].max(), boxes[:, 2].max())) + pad,
+            float(max(pts[:, 1].max(), boxes[:, 3].max())) + pad,
+        )
+
+
+# --- where the templates go -------------------------------------------------------------------
+
+
+def template_positions(ss: SurfaceSizing, spacing: float | None) -> tuple[float, ...]:
+    """Spanwise positions (m) of the templates of one surface: root, panel breaks, tip, and
+    every ``spacing`` from the root. A spaced position within 1 mm of a station is dropped."""
+    stations = [st.s for st in ss.planform.stations]
+    extra = []
+    if spacing:
+        tip = stations[-1]
+        k = 1
+        while k * spacing < tip:
+            s = k * spacing
+            if all(abs(s - t) >= 1e-3 for t in stations):
+                extra.append(s)
+            k += 1
+    return tuple(sorted(stations + extra))
+
+
+def template_name(key: str, s: float) -> str:
+    """Template (and DXF layer) name: surface and spanwise position in whole mm."""
+    return f"{PART_NAMES[key]}-{_AXIS[key]}{round(s * 1000):04d}"
+
+
+def hinge_fraction(sl: SurfaceLayout, control, s: float) -> float:
+    """Local chord fraction of a control's hinge line at spanwise position s.
+
+    The hinge line is straight between its hinge points (the ends and any panel break), so
+    its x in the surface's plane is linear in s between them; the fraction follows from the
+    local leading edge and chord."""
+    pf = sl.sizing.planform
+    ss = [h.s for h in control.hinge]
+    xs = [pf.at(h.s)[0] + h.chord_fraction * pf.at(h.s)[1] for h in control.hinge]
+    x_le, chord, _, _ = pf.at(s)
+    return (float(np.interp(s, ss, xs)) - x_le) / chord
+
+
+def _where(ss: SurfaceSizing, s: float) -> str:
+    stations = ss.planform.stations
+    for i, st in enumerate(stations):
+        if abs(st.s - s) < 1e-9:
+            return "root" if i == 0 else "tip" if i == len(stations) - 1 else f"break {i}"
+    return "between stations"
+
+
+def _section_mix(ss: SurfaceSizing, s: float) -> str:
+    """The named sections the section at s is made of, with their weights."""
+    pf = ss.planform
+    i, w = pf.section_weight(s)
+    mix: dict[str, float] = {}
+    for (a, b, wb), weight in ((pf.stations[i].airfoil, 1 - w), (pf.stations[i + 1].airfoil, w)):
+        mix[a] = mix.get(a, 0.0) + weight * (1 - wb)
+        mix[b] = mix.get(b, 0.0) + weight * wb
+    parts = [(name, v) for name, v in mix.items() if v > 5e-4]
+    if len(parts) == 1:
+        return parts[0][0]
+    return " + ".join(f"{v:.3f} {name}" for name, v in parts)
+
+
+def _surface_at(x: np.ndarray, y: np.ndarray, at: float) -> float:
+    """y of one surface polyline (running LE -> TE) at chord position ``at`` (same units)."""
+    start = int(np.argmin(x))  # a cambered upper surface may dip a hair ahead of the LE
+    return float(np.interp(at, x[start:], y[start:]))
+
+
+def section_template(
+    layout: Layout, key: str, s: float, dirs: tuple = (), side: str | None = None
+) -> SectionTemplate:
+    """The template of surface ``key`` at spanwise position s (m from the root)."""
+    sl = layout.surface(key)
+    ss = sl.sizing
+    solids = layout.sizing.design.solids
+    pf = ss.planform
+    _, chord_m, _, twist = pf.at(s)
+    af = unit_section(ss, s, solids.section_points, solids.te_thickness, tuple(dirs))
+    c = chord_m * 1000.0
+    up = af.upper * c
+    lo = af.lower * c
+    outline = np.concatenate([up, lo[::-1][:-1]])  # LE -> TE upper, TE -> LE lower, open
+    # the chord line is the x axis of the unit-chord section, (0, 0) to (1, 0), as for the
+    # corner and hinge points of the layout; a cambered nose may stand a hair ahead of it
+    le, te = (0.0, 0.0), (c, 0.0)
+    top = float(max(up[:, 1].max(), lo[:, 1].max()))
+    bottom = float(min(up[:, 1].min(), lo[:, 1].min()))
+    strokes = [
+        Stroke("outline", tuple(map(tuple, outline.tolist())), closed=True),
+        Stroke("chord", (le, te)),
+    ]
+    notes = []
+    y_lo, y_hi = bottom - EDGE_MARK_REACH, top + EDGE_MARK_REACH
+    for word, x in (("LE", le[0]), ("TE", te[0])):
+        strokes.append(Stroke("edge", ((x, y_lo), (x, y_hi))))
+        notes.append(Note("edge", word, (x + 1.0, y_hi + 1.0)))
+
+    def inner_mark(kind: str, fraction: float) -> tuple[float, float, float]:
+        x = fraction * c
+        yu = _surface_at(up[:, 0], up[:, 1], x)
+        yl = _surface_at(lo[:, 0], lo[:, 1], x)
+        strokes.append(Stroke(kind, ((x, yl - INNER_MARK_REACH), (x, yu + INNER_MARK_REACH))))
+        return x, yl, yu
+
+    side = side or sl.sides[0]
+    hinges = []
+    for control in sl.controls:
+        if control.side != side or not control.s_start - 1e-9 <= s <= control.s_end + 1e-9:
+            continue
+        f = hinge_fraction(sl, control, s)
+        hinges.append(HingeMark(control.name, f))
+        x, yl, yu = inner_mark("hinge", f)
+        # the hinge axis lies on the mean line, halfway between the surfaces
+        ym = 0.5 * (yl + yu)
+        ring = [
+            (x + 1.5 * math.cos(a), ym + 1.5 * math.sin(a)) for a in np.linspace(0, 2 * math.pi, 25)
+        ]
+        strokes.append(Stroke("hinge", tuple(ring[:-1]), closed=True))
+        notes.append(Note("hinge", f"hinge {100 * f:.1f} % ({control.name})", (x + 1.0, yu + 5.0)))
+    spar = ss.spec.spar_at
+    if spar is not None:
+        x, yl, _ = inner_mark("spar", spar)
+        notes.append(Note("spar", f"spar {100 * spar:.1f} %", (x + 1.0, yl - 5.0 - TEXT)))
+
+    name = template_name(key, s)
+    word = _SURFACE_WORDS[key]
+    if pf.symmetric:
+        place = f"y = {s * 1000:.0f} mm from the plane of symmetry"
+        turn = "nose up"
+    else:
+        place = f"{s * 1000:.0f} mm above the fin root"
+        turn = "LE to starboard"
+    angle = ss.spec.incidence + twist
+    lines = [
+        f"{name}: {word}, {_where(ss, s)}, {place}",
+        f"chord {c:.1f} mm; section {_section_mix(ss, s)}",
+        f"chord line at {math.degrees(angle):+.2f} deg to the x axis ({turn}); drawn 1:1 in mm",
+    ]
+    y = y_lo - 3.0 - TEXT
+    for line in lines:
+        notes.append(Note("label", line, (0.0, y)))
+        y -= 1.6 * TEXT
+    return SectionTemplate(
+        surface=key,
+        name=name,
+        s=s,
+        chord=chord_m,
+        angle=angle,
+        section=_section_mix(ss, s),
+        hinges=tuple(hinges),
+        spar=spar,
+        label=tuple(lines),
+        upper=up,
+        lower=lo,
+        strokes=tuple(strokes),
+        notes=tuple(notes),
+    )
+
+
+def section_templates(layout: Layout, dirs: tuple = ()) -> tuple[SectionTemplate, ...]:
+    """Every template of every surface, root to tip, wing first."""
+    spacing = layout.sizing.design.drawings.template_spacing
+    return tuple(
+        section_template(layout, sl.key, s, dirs)
+        for sl in layout.surfaces
+        for s in template_positions(sl.sizing, spacing)
+    )
+
+
+# --- tiling -------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Tile:
+    """One page's window onto a template (drawing mm): lower-left corner, size, position."""
+
+    x0: float
+    y0: float
+    width: float
+    height: float
+    column: int  # 0-based
+    row: int  # 0-based, top row first
+    columns: int
+    rows: int
+
+    def contains(self, box: tuple[float, float, float, float]) -> bool:
+        return (
+            box[0] >= self.x0
+            and box[2] <= self.x0 + self.width
+            and box[1] >= self.y0
+            and box[3] <= self.y0 + self.height
+        )
+
+
+def _starts(lo: float, hi: float, window: float, overlap: float) -> list[float]:
+    """Window starts covering [lo, hi]; one window is centred on a span that fits."""
+    span = hi - lo
+    if span <= window:
+        return [0.5 * (lo + hi) - 0.5 * window]
+    n = math.ceil((span - overlap) / (window - overlap))
+    return [lo + i * (window - overlap) for i in range(n)]
+
+
+def tiles(
+    extent: tuple[float, float, float, float], width: float, height: float, overlap: float
+) -> list[Tile]:
+    """Pages covering a drawing of the given extent (mm), left to right, then top to bottom."""
+    xs = _starts(extent[0], extent[2], width, overlap)
+    # rows run down from the top of the drawing (the top row is the first)
+    ys = [
+        extent[1] + extent[3] - y - height for y in _starts(extent[1], extent[3], height, overlap)
+    ]
+    return [
+        Tile(x, y, width, height, i, j, len(xs), len(ys))
+        for j, y in enumerate(ys)
+        for i, x in enumerate(xs)
+    ]
+
+
+@dataclass(frozen=True)
+class Cross:
+    """An alignment cross (drawing mm) and its label: the position across the joint it marks,
+    ``x`` along the chord from the LE for a joint between columns, ``y`` from the chord line
+    for a joint between rows."""
+
+    x: float
+    y: float
+    label: str
+    label_above: bool
+
+
+def alignment_crosses(t: SectionTemplate, page_tiles: list[Tile], overlap: float) -> list[Cross]:
+    """Two crosses in the middle of every overlap between neighbouring tiles, so each shows on
+    both pages: beside the section's surfaces at a joint between columns (clear of the
+    outline where the tile allows), at a quarter and three quarters of the tile's width at a
+    joint between rows."""
+    edge = 7.0  # keep a cross and its label this far inside the tile
+    out: list[Cross] = []
+    columns = sorted({tile.x0 for tile in page_tiles})
+    rows = sorted({tile.y0 for tile in page_tiles})
+    w, h = page_tiles[0].width, page_tiles[0].height
+    for x_next in columns[1:]:
+        xm = x_next + 0.5 * overlap
+        yl, yu = t.surfaces_at(xm)
+        for y0 in rows:
+            lo, hi = y0 + edge, y0 + h - edge
+            ys = sorted({min(max(y, lo), hi) for y in (yl - 15.0, yu + 15.0)})
+            if ys[-1] - ys[0] < 20.0:
+                ys = [lo, hi]
+            mid = 0.5 * (yl + yu)
+            out += [Cross(xm, y, f"x {xm:.1f}", y > mid) for y in ys]
+    for y_below in rows[:-1]:
+        ym = y_below + h - 0.5 * overlap
+        for x0 in columns:
+            out += [Cross(x0 + f * w, ym, f"y {ym:.1f}", True) for f in (0.25, 0.75)]
+    return out
+
+
+def clip_polyline(points, box: tuple[float, float, float, float]) -> list[np.ndarray]:
+    """Pieces of a polyline inside the box (x0, y0, x1, y1), by Liang-Barsky per segment."""
+    p = np.asarray(points, dtype=float)
+    pieces: list[list[np.ndarray]] = []
+    current: list[np.ndarray] = []
+    for a, b in zip(p[:-1], p[1:], strict=True):
+        seg = _clip_segment(a, b, box)
+        if seg is None:
+            if current:
+                pieces.append(current)
+                current = []
+            continue
+        a2, b2 = seg
+        if current and np.allclose(current[-1], a2, atol=1e-12):
+            current.append(b2)
+        else:
+            if current:
+                pieces.append(current)
+            current = [a2, b2]
+        if not np.allclose(b2, b, atol=1e-12):
+            pieces.append(current)
+            current = []
+    if current:
+        pieces.append(current)
+    return [np.array(c) for c in pieces]
+
+
+def _clip_segment(a: np.ndarray, b: np.ndarray, box) -> tuple[np.ndarray, np.ndarray] | None:
+    d = b - a
+    t0, t1 = 0.0, 1.0
+    for q, r in (
+        (-d[0], a[0] - box[0]),
+        (d[0], box[2] - a[0]),
+        (-d[1], a[1] - box[1]),
+        (d[1], box[3] - a[1]),
+    ):
+        if q == 0.0:
+            if r < 0.0:
+                return None
+            continue
+        t = r / q
+        if q < 0.0:
+            t0 = max(t0, t)
+        else:
+            t1 = min(t1, t)
+        if t0 > t1:
+            return None
+    return (a + t0 * d if t0 > 0.0 else a.copy(), a + t1 * d if t1 < 1.0 else b.copy())
+
+
+# --- PDF ----------------------------------------------------------------------------------------
+
+_WIDTHS_PT = {
+    "outline": 0.6,
+    "chord": 0.35,
+    "edge": 0.5,
+    "hinge": 0.5,
+    "spar": 0.5,
+    "cross": 0.4,
+    "bar": 0.6,
+    "tick": 0.4,
+}
+_STYLES = {"chord": (0, (6, 2, 1, 2)), "hinge": (0, (4, 2)), "spar": (0, (1.5, 1.5))}
+_COLOURS = {"hinge": "#c00000", "spar": "#0040c0"}
+_CROSS = 5.0  # half-length of an alignment cross's arms (mm)
+
+
+def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Path:
+    """Every section template at true scale on the design's paper (A4 or Letter, portrait).
+
+    A template larger than a page's drawing area is tiled over several pages that overlap by
+    ``OVERLAP``; crosses in each overlap, labelled with their drawing position, show on both
+    pages. Every page carries a 100 mm check bar, its label (template, tile i of n) and the
+    caution. Output is deterministic (no creation date)."""
+    import matplotlib
+    from matplotlib.backends.backend_pdf import PdfPages
+
+    path = Path(path)
+    design = layout.sizing.design
+    paper = design.drawings.paper
+    width, height = PAPER_MM[paper]
+    region = (MARGIN, MARGIN + FOOTER, width - MARGIN, height - MARGIN - HEADER)
+    rw, rh = region[2] - region[0], region[3] - region[1]
+    templates = section_templates(layout, dirs)
+    plans = []
+    for t in templates:
+        ext = t.extent(labels=False, pad=4.0)  # the page label names the template
+        page_tiles = tiles(ext, rw, rh, OVERLAP)
+        plans.append((t, ext, page_tiles, alignment_crosses(t, page_tiles, OVERLAP)))
+    sheets = sum(len(p[2]) for p in plans)
+    rc = {
+        "pdf.use14corefonts": True,
+        "pdf.compression": 6,
+        "path.simplify": False,
+        "lines.solid_capstyle": "butt",
+        "lines.dash_capstyle": "butt",
+    }
+    metadata = {
+        "Title": f"{design.title}: section templates (1:1)",
+        "Creator": "geomgen",
+        "CreationDate": None,
+    }
+    with matplotlib.rc_context(rc), PdfPages(path, metadata=metadata) as pdf:
+        sheet = _Sheet(design.title, paper, (width, height), region)
+        number = 0
+        for t, _ext, page_tiles, crosses in plans:
+            for k, tile in enumerate(page_tiles, start=1):
+                number += 1
+                notes = _notes_on([n for n in t.notes if n.kind != "label"], tile, page_tiles)
+                sheet.draw(t, tile, k, len(page_tiles), notes, crosses, number, sheets)
+                pdf.savefig(sheet.figure)
+                sheet.wipe()
+    return path
+
+
+def _notes_on(notes, tile: Tile, page_tiles: list[Tile]) -> list[Note]:
+    """Notes a tile shows: those it holds whole (in an overlap: on both pages), and a note
+    that no tile holds whole on the tile that holds its anchor."""
+    window = (tile.x0, tile.y0, tile.x0 + tile.width, tile.y0 + tile.height)
+    out = []
+    for note in notes:
+        box = note.box()
+        if tile.contains(box) or (
+            not any(other.contains(box) for other in page_tiles) and _inside(note.at, window)
+        ):
+            out.append(note)
+    return out
+
+
+class _Sheet:
+    """One figure the size of the paper with an axes spanning it, 1 data unit = 1 mm; reused
+    for every page (artists are removed after each page is saved)."""
+
+    def __init__(self, title: str, paper: str, size: tuple[float, float], region):
+        from matplotlib.figure import Figure
+        from matplotlib.font_manager import FontProperties
+
+        self.title, self.paper, self.size, self.region = title, paper, size, region
+        width, height = size
+        self.figure = Figure(figsize=(width / 25.4, height / 25.4))
+        ax = self.figure.add_axes((0.0, 0.0, 1.0, 1.0))
+        ax.set_xlim(0.0, width)
+        ax.set_ylim(0.0, height)
+        ax.set_autoscale_on(False)
+        ax.set_axis_off()
+        self.ax = ax
+        # core Helvetica (not embedded) is filed under the weight "medium"
+        self.font = FontProperties(family="Helvetica", weight="medium")
+
+    def wipe(self) -> None:
+        for artist in [*self.ax.lines, *self.ax.texts]:
+            artist.remove()
+
+    def lines(self, polylines: list[np.ndarray], kind: str) -> None:
+        """Polylines of one kind (page mm) as one path; NaN rows separate them."""
+        from matplotlib.lines import Line2D
+
+        if not polylines:
+            return
+        gap = np.full((1, 2), np.nan)
+        p = np.concatenate([x for q in polylines for x in (np.asarray(q, dtype=float), gap)])
+        self.ax.add_line(
+            Line2D(
+                p[:-1, 0],
+                p[:-1, 1],
+                color=_COLOURS.get(kind, "black"),
+                linewidth=_WIDTHS_PT[kind],
+                linestyle=_STYLES.get(kind, "solid"),
+            )
+        )
+
+    def text(self, x, y, text, height_mm, align="left", colour="black") -> None:
+        ha = {"left": "left", "centre": "center", "right": "right"}[align]
+        size = height_mm * PT_PER_MM / 0.72  # letter height -> font size: capitals are 0.72 em
+        self.ax.text(
+            x, y, text, fontproperties=self.font, fontsize=size, ha=ha, va="baseline", color=colour
+        )
+
+    def draw(self, t, tile, k, n, notes, crosses, number, sheets) -> None:
+        width, height = self.size
+        # drawing mm -> page mm
+        shift = np.array([self.region[0] - tile.x0, self.region[1] - tile.y0])
+        window = (tile.x0, tile.y0, tile.x0 + tile.width, tile.y0 + tile.height)
+        by_kind: dict[str, list[np.ndarray]] = {}
+        for stroke in t.strokes:
+            pts = list(stroke.points) + ([stroke.points[0]] if stroke.closed else [])
+            for piece in clip_polyline(pts, window):
+                by_kind.setdefault(stroke.kind, []).append(piece + shift)
+        for cross in crosses:
+            if _inside((cross.x, cross.y), window):
+                c = np.array([cross.x, cross.y]) + shift
+                by_kind.setdefault("cross", []).extend(
+                    [c + [[-_CROSS, 0.0], [_CROSS, 0.0]], c + [[0.0, -_CROSS], [0.0, _CROSS]]]
+                )
+                y = c[1] + _CROSS + 1.0 if cross.label_above else c[1] - _CROSS - 1.0 - SMALL_TEXT
+                self.text(c[0], y, cross.label, SMALL_TEXT, "centre")
+        for kind, polylines in by_kind.items():
+            self.lines(polylines, kind)
+        for note in notes:
+            x, y = np.array(note.at) + shift
+            self.text(x, y, note.text, note.height, note.align, _COLOURS.get(note.kind, "black"))
+
+        # page label
+        top = height - MARGIN
+        head = f"{t.name}   chord {t.chord * 1000:.1f} mm   tile {k} of {n}"
+        self.text(MARGIN, top - 3.5, head, 3.5)
+        self.text(width - MARGIN, top - 3.5, f"sheet {number} of {sheets}", 2.4, "right")
+        where = t.label[0].split(": ", 1)[1]
+        self.text(MARGIN, top - 8.0, f"{where}; section {t.section}", 2.2)
+        self.text(MARGIN, top - 11.7, f"{t.label[2]}; {self.title}", 2.2)
+        if n > 1:
+            self.text(
+                MARGIN,
+                top - 15.4,
+                f"column {tile.column + 1} of {tile.columns}, row "
+                f"{tile.row + 1} of {tile.rows}: overlap the neighbouring tiles so that "
+                "crosses of equal x or y coincide",
+                2.2,
+            )
+
+        # check bar with a tick every 10 mm, the print note, the caution
+        y_bar, x_bar = MARGIN + FOOTER - 4.0, MARGIN
+        self.lines([np.array([[x_bar, y_bar], [x_bar + CHECK_BAR, y_bar]])], "bar")
+        ticks = [
+            np.array([[x, y_bar], [x, y_bar + (3.0 if i % 5 == 0 else 1.5)]])
+            for i, x in enumerate(x_bar + 10.0 * np.arange(11))
+        ]
+        self.lines(ticks, "tick")
+        self.text(x_bar + CHECK_BAR + 3.0, y_bar, "100 mm", 3.0)
+        note = f"print on {self.paper} at 100 % (actual size, no fit to page): the bar must measure"
+        self.text(x_bar, y_bar - 4.5, note + " 100 mm", 2.2)
+        y = y_bar - 9.0
+        for line in textwrap.wrap(CAUTION, 135):
+            self.text(MARGIN, y, line, 2.0)
+            y -= 2.9
+
+
+def _inside(p, box) -> bool:
+    return box[0] <= p[0] <= box[2] and box[1] <= p[1] <= box[3]
