@@ -414,7 +414,10 @@ def build_side(sl: SurfaceLayout, side: str, points: int, te: float, dirs: tuple
             moving0 = _checked(whole.intersect(moving_region), c.name, "intersect")
             aft_portion = _checked(whole.intersect(aft_region), c.name, "intersect aft region")
             cut_volume = volume(_checked(whole.intersect(cut_region), c.name, "intersect cove"))
-            moving = _checked(_deflect(moving0, sl, p0, p1, spec.deflection), c.name, "deflect")
+            moving = _deflect(moving0, sl, p0, p1, spec.deflection)
+            if not moving.isValid():
+                raise GeometryError("invalid after turning", part=c.name, operation="deflect")
+            _VOLUMES[moving] = volume(moving0)  # a rigid turn keeps the volume
         except GeometryError:
             raise
         except Exception as err:
@@ -434,7 +437,13 @@ def build_side(sl: SurfaceLayout, side: str, points: int, te: float, dirs: tuple
 
 
 def _mirror(shape: cq.Shape, part: str) -> cq.Shape:
-    return _checked(shape.mirror("XZ"), part, "mirror")
+    """Mirror image in the plane of symmetry; a mirror keeps the volume, so the source's is
+    reused instead of integrated again."""
+    image = shape.mirror("XZ")
+    if not image.isValid():
+        raise GeometryError("the kernel returned an invalid shape", part=part, operation="mirror")
+    _VOLUMES[image] = volume(shape)
+    return image
 
 
 def mirror_side(right: SideBuild) -> SideBuild:

@@ -82,9 +82,16 @@ def mesh_checks(part: str, mesh: trimesh.Trimesh, solid_volume: float) -> list[C
     ]
 
 
-def stl_checks(part: str, path: Path, solid_volume: float) -> list[Check]:
+def stl_checks(
+    part: str, path: Path, solid_volume: float
+) -> tuple[list[Check], tuple[np.ndarray, np.ndarray]]:
+    """Checks of one written STL file, and its mesh as (vertices, faces) arrays (mm) for
+    whoever shows it next (report.html), so the file is read once."""
     mesh = trimesh.load_mesh(str(path), file_type="stl")
-    return mesh_checks(part, mesh, solid_volume)
+    return mesh_checks(part, mesh, solid_volume), (
+        np.asarray(mesh.vertices, dtype=np.float64),
+        np.asarray(mesh.faces, dtype=np.int64),
+    )
 
 
 def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:

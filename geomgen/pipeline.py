@@ -120,12 +120,14 @@ def run_build(
         step_path = folder.path(f"{d.name}.step")
         cad.write_step(built.parts, step_path, d.name)
         stage(f"wrote {step_path.name}")
+        meshes = {}
         for p in built.parts:
             deflection = d.solids.tessellation * p.local_chord_min
             stl = folder.path(f"stl/{p.name}.stl")
             cad.write_stl(p.shape, stl, deflection)
             solid_volume = cad.volume(p.shape)
-            results += checks.stl_checks(p.name, stl, solid_volume)
+            part_checks, meshes[p.name] = checks.stl_checks(p.name, stl, solid_volume)
+            results += part_checks
             part_rows.append((p.name, solid_volume, deflection))
         stage(f"wrote {len(built.parts)} STL files")
         results += checks.surface_checks(built, dirs)
@@ -145,10 +147,6 @@ def run_build(
         folder.write_text("checks.json", checks_text)
         from .html_report import write_html
 
-        meshes = {
-            p.name: cad.mesh_arrays(p.shape, d.solids.tessellation * p.local_chord_min)
-            for p in built.parts
-        }
         write_html(
             layout,
             folder.path("report.html"),
