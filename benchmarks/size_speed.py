@@ -35,8 +35,10 @@ def main() -> None:
             start = time.perf_counter()
             subprocess.run([sys.executable, "-c", "pass"], check=True)
             bare.append(time.perf_counter() - start)
-    print(f"geomgen size, {args.runs} runs (s): best {min(times):.3f}  "
-          f"median {statistics.median(times):.3f}  worst {max(times):.3f}")
+    print(
+        f"geomgen size, {args.runs} runs (s): best {min(times):.3f}  "
+        f"median {statistics.median(times):.3f}  worst {max(times):.3f}"
+    )
     print(f"bare interpreter start (s): median {statistics.median(bare):.3f}")
 
 
