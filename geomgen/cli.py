@@ -25,34 +25,27 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--version", action="version", version=f"geomgen {__version__}")
     sub = p.add_subparsers(dest="command", required=True)
     size = sub.add_parser("size", help="sizing, corner points and hinge lines; writes reports")
-    size.add_argument("design", help="design file (YAML)")
-    size.add_argument("--out", default="out", help="output folder (default: out)")
-    size.add_argument(
-        "--units",
-        choices=("si", "imperial"),
-        default=None,
-        help="unit system of report.md (default: the design's)",
-    )
     build = sub.add_parser(
         "build", help="size, then loft the solids, cut the control surfaces, export, check"
     )
-    build.add_argument("design", help="design file (YAML)")
-    build.add_argument("--out", default="out", help="output folder (default: out)")
-    build.add_argument(
-        "--units",
-        choices=("si", "imperial"),
-        default=None,
-        help="unit system of report.md (default: the design's)",
+    for command in (size, build):
+        command.add_argument("design", help="design file (YAML)")
+        command.add_argument("--out", default="out", help="output folder (default: out)")
+        command.add_argument(
+            "--units",
+            choices=("si", "imperial"),
+            default=None,
+            help="unit system of human-readable outputs (default: the design's)",
+        )
+    size.add_argument(
+        "--no-drawings",
+        action="store_true",
+        help="reports only: no three-view, DXF or report.html (fastest)",
     )
     build.add_argument(
         "--only",
         default=None,
         help="comma-separated part names to build, e.g. wing-right,aileron-right",
-    )
-    size.add_argument(
-        "--no-drawings",
-        action="store_true",
-        help="reports only: no three-view, DXF or report.html (fastest)",
     )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p
