@@ -25,9 +25,11 @@ from pathlib import Path
 import cadquery as cq
 import numpy as np
 from OCP.BRep import BRep_Tool
+from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeVertex
 from OCP.BRepGProp import BRepGProp
 from OCP.BRepMesh import BRepMesh_IncrementalMesh
-from OCP.gp import gp_Trsf
+from OCP.BRepOffsetAPI import BRepOffsetAPI_ThruSections
+from OCP.gp import gp_Pnt, gp_Trsf
 from OCP.GProp import GProp_GProps
 from OCP.IMeshTools import IMeshTools_Parameters
 from OCP.StlAPI import StlAPI_Writer
@@ -35,6 +37,7 @@ from OCP.TopAbs import TopAbs_Orientation
 from OCP.TopLoc import TopLoc_Location
 
 from .errors import GeometryError
+from .fuselage import BodyStation, loft_sections
 from .layout import PART_NAMES, ControlLayout, Layout, SurfaceLayout, fixed_part_name
 from .sections import PlacedSection, surface_sections, unit_section
 
@@ -49,6 +52,7 @@ COLOURS: dict[str, tuple[float, float, float]] = {
     "flap": (0.20, 0.55, 0.85),
     "elevator": (0.95, 0.72, 0.10),
     "rudder": (0.30, 0.70, 0.35),
+    "fuselage": (0.88, 0.88, 0.84),
 }
 
 
@@ -594,3 +598,126 @@ def mesh_arrays(shape: cq.Shape, deflection: float, angle: float = 0.25):
         faces.append(t + offset)
         offset += tri.NbNodes()
     return np.vstack(vertices), np.vstack(faces)
+
+
+# --- fuselage -------------------------------------------------------------------------------
+
+
+def _body_wire(points: np.ndarray, part: str) -> cq.Wire:
+    """Closed periodic spline through a loop (mm), the same parameters at the same loop
+    index on every section (so the loft joins corresponding points)."""
+    n = len(points)
+    try:
+        edge = cq.Edge.makeSpline(
+            [_vec(p) for p in points], periodic=True, parameters=list(np.linspace(0.0, 1.0, n + 1))
+        )
+        wire = cq.Wire.assembleEdges([edge])
+    except Exception as err:  # OCP raises its own exception types
+        raise GeometryError(str(err), part=part, operation="section wire") from err
+    if not wire.IsClosed():
+        raise GeometryError(
+            f"section at x {points[0, 0]:.1f} mm is not closed", part=part, operation="section wire"
+        )
+    return wire
+
+
+def build_fuselage(
+    stations: tuple[BodyStation, ...],
+    n_points: int = 64,
+    ruled: bool = False,
+    part: str = "fuselage",
+    between: int = 2,
+) -> cq.Shape:
+    """The fuselage (mm) lofted through its stations (``fuselage.BodyStation``, m) as one
+    closed solid, named ``part`` in messages: a smooth loft (``ruled=False``) through closed
+    periodic splines of ``n_points`` points; a pointed nose or tail (a zero-size end station)
+    is a vertex, which BRepOffsetAPI_ThruSections takes at either end.
+
+    A smooth loft goes through blended sections between the stations too
+    (``fuselage.loft_sections``: at least ``between`` in every interval, none more than 1/24
+    of the body apart). Measured on cadquery 2.8 / OCP 7.9: through the 21 stations of the
+    parametric demo body alone (36 mm apart at the tail-cone start, 700 mm elsewhere) the
+    kernel's smooth fit oscillated, +57 % volume; through 4 stations of a pointed body with 2
+    sections between, it pinched to 0.15 mm short of the tail tip (the mesh was not closed);
+    with the sections above, seven test bodies agree with the section integrals within 2e-4
+    (the loft takes 0.1-0.6 s)."""
+    builder = BRepOffsetAPI_ThruSections(True, ruled)
+    for sec in loft_sections(tuple(stations), n_points, ruled, between):
+        pts = sec.points * MM
+        if sec.is_point:
+            builder.AddVertex(BRepBuilderAPI_MakeVertex(gp_Pnt(*map(float, pts[0]))).Vertex())
+        else:
+            builder.AddWire(_body_wire(pts, part).wrapped)
+    try:
+        builder.Build()
+        if not builder.IsDone():
+            raise GeometryError("the loft was not built", part=part, operation="loft")
+        shape = cq.Shape.cast(builder.Shape())
+    except GeometryError:
+        raise
+    except Exception as err:
+        raise GeometryError(str(err), part=part, operation="loft") from err
+    if len(shape.Solids()) != 1:
+        raise GeometryError(
+            f"the loft gave {len(shape.Solids())} solids, not one", part=part, operation="loft"
+        )
+    # Measured on the demo body: at eps 1e-8 the volume takes 5-10 s, at 1e-5 0.05 s and agrees
+    # within 2e-6; both are remembered now, before any meshing slows the integration down.
+    volume(shape, eps=1e-5)
+    surface_area(shape, eps=1e-5)
+    return _checked(shape, part, "loft")
+
+
+_AREAS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
+def surface_area(shape: cq.Shape, eps: float = 1e-5) -> float:
+    """Total area of the faces (model units^2) by adaptive Gauss integration, remembered per
+    shape (like ``volume``)."""
+    known = _AREAS.get(shape)
+    if known is not None:
+        return known
+    props = GProp_GProps()
+    BRepGProp.SurfaceProperties_s(shape.wrapped, props, eps)
+    _AREAS[shape] = float(props.Mass())
+    return _AREAS[shape]
+
+
+def body_mesh_arrays(shape: cq.Shape, deflection: float, angle: float = 0.25):
+    """``mesh_arrays`` without the triangles that have two corners at one point (mm).
+
+    Measured: BRepMesh meshes the degenerate edge at a pointed end (a loft's vertex, the tip
+    of ``makeCone``, the poles of ``makeSphere``) with one triangle whose two corners are both
+    the tip; it has no area and no volume, but as an edge from the tip to itself it makes the
+    merged mesh fail a watertightness test. Without it the mesh is closed."""
+    vertices, faces = mesh_arrays(shape, deflection, angle)
+    tri = vertices[faces]
+    sides = [np.linalg.norm(tri[:, i] - tri[:, (i + 1) % 3], axis=1) for i in range(3)]
+    scale = max(float(np.ptp(vertices, axis=0).max()), 1.0)
+    return vertices, faces[np.min(sides, axis=0) > 1e-9 * scale]
+
+
+def write_stl_arrays(vertices: np.ndarray, faces: np.ndarray, path: Path, name: str) -> None:
+    """Binary STL of a triangle mesh (mm): 80-byte header, count, then per triangle the unit
+    normal, three corners and a zero attribute word (the format's own layout)."""
+    tri = vertices[faces].astype(np.float64)
+    normals = np.cross(tri[:, 1] - tri[:, 0], tri[:, 2] - tri[:, 0])
+    lengths = np.linalg.norm(normals, axis=1, keepdims=True)
+    normals = np.divide(normals, lengths, out=np.zeros_like(normals), where=lengths > 0)
+    record = np.dtype([("n", "<f4", 3), ("v", "<f4", (3, 3)), ("attr", "<u2")])
+    data = np.zeros(len(faces), dtype=record)
+    data["n"], data["v"] = normals, tri
+    header = f"geomgen {name}".encode()[:80].ljust(80, b" ")
+    try:
+        with open(path, "wb") as out:
+            out.write(header)
+            out.write(np.uint32(len(faces)).tobytes())
+            out.write(data.tobytes())
+    except OSError as err:
+        raise GeometryError(str(err), part=name, operation="STL export") from err
+
+
+def write_body_stl(shape: cq.Shape, path: Path, deflection: float, angle: float = 0.25) -> None:
+    """Binary STL (mm) of a body with pointed ends (the fuselage), without the tip's zero-area
+    triangles (see ``body_mesh_arrays``); ``deflection`` as in ``write_stl``."""
+    write_stl_arrays(*body_mesh_arrays(shape, deflection, angle), path, path.stem)

@@ -13,7 +13,8 @@ from pathlib import Path
 import numpy as np
 import trimesh
 
-from . import cad
+from . import cad, fuselage
+from .fuselage import BodyStation
 from .layout import fixed_part_name
 from .sections import volume_from_sections
 from .tolerances import TOLERANCES
@@ -119,8 +120,7 @@ def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
         chord_min = min(st.chord for st in ss.planform.stations) * MM
         deflection = d.solids.tessellation * chord_min * t.area_mesh_coarsening
         whole_mesh = load_mesh(*cad.mesh_arrays(sb.whole, deflection))
-        out.append(_flag("mesh of the uncut surface is watertight", name,
-                         whole_mesh.is_watertight))
+        out.append(_flag("mesh of the uncut surface is watertight", name, whole_mesh.is_watertight))
         view = np.array([0.0, 1.0, 0.0]) if sl.key == "vertical_tail" else np.array([0, 0, 1.0])
         out.append(
             _rel(
@@ -214,3 +214,43 @@ def step_checks(step_names_volumes: dict[str, float], parts: tuple[cad.Part, ...
                 )
             )
     return out
+
+
+def fuselage_checks(
+    shape: cad.cq.Shape,
+    stations: tuple[BodyStation, ...],
+    tessellation_mm: float,
+    ruled: bool = False,
+    part: str = "fuselage",
+) -> list[Check]:
+    """Checks of the fuselage solid (mm) against its stations (m): the mesh (without the
+    zero-area triangles at a pointed end, as written to STL) is watertight and consistently
+    wound; the volume agrees with the integral of section areas along x, and the surface area
+    with the integral of section perimeters (times the slope factor) plus the flat end faces.
+    ``ruled`` must be what the body was lofted with."""
+    t = TOLERANCES
+    # the exact-geometry integrals first: once meshed, a shape integrates far more slowly
+    solid_volume = cad.volume(shape)
+    solid_area = cad.surface_area(shape)
+    mesh = load_mesh(*cad.body_mesh_arrays(shape, tessellation_mm))
+    lateral = fuselage.wetted_area_by_perimeters(stations, ruled)
+    return [
+        _flag("mesh is watertight", part, mesh.is_watertight),
+        _flag("mesh winding is consistent", part, mesh.is_winding_consistent),
+        _rel(
+            "body volume vs integral of section areas",
+            part,
+            solid_volume,
+            fuselage.volume_by_sections(stations, ruled) * MM**3,
+            t.body_volume_vs_sections,
+            "mm^3",
+        ),
+        _rel(
+            "body surface area vs integral of section perimeters plus end faces",
+            part,
+            solid_area,
+            (lateral + fuselage.end_face_area(stations)) * MM**2,
+            t.body_area_vs_perimeters,
+            "mm^2",
+        ),
+    ]

@@ -94,7 +94,7 @@ def run_build(
     d, layout, dirs = _size(design_path)
     stage("sized and laid out")
     if only is not None:
-        known = set(layout.part_names)
+        known = set(layout.part_names) | ({"fuselage"} if d.fuselage else set())
         unknown = sorted(only - known)
         if unknown:
             from .errors import InputError
@@ -106,7 +106,25 @@ def run_build(
     from . import cad, checks
 
     built = cad.build(layout, dirs, only)
-    stage(f"built {len(built.parts)} solids")
+    parts = built.parts
+    body = None
+    if d.fuselage is not None and (only is None or "fuselage" in only):
+        from .fuselage import expand
+
+        stations = expand(d.fuselage)
+        size_min = min(max(st.width for st in stations), max(st.height for st in stations))
+        body = cad.Part(
+            "fuselage",
+            "fuselage",
+            "fuselage",
+            "centre",
+            cad.build_fuselage(stations),
+            False,
+            0.0,
+            size_min * cad.MM,
+        )
+        parts = (*parts, body)
+    stage(f"built {len(parts)} solids")
     results: list = []
     part_rows = []
     system = units or d.units
@@ -118,20 +136,27 @@ def run_build(
         write_template_pdf(layout, folder.path("templates.pdf"), dirs)
         stage("wrote the reports, drawings, DXF files and 1:1 templates")
         step_path = folder.path(f"{d.name}.step")
-        cad.write_step(built.parts, step_path, d.name)
+        cad.write_step(parts, step_path, d.name)
         stage(f"wrote {step_path.name}")
         meshes = {}
-        for p in built.parts:
+        for p in parts:
             deflection = d.solids.tessellation * p.local_chord_min
             stl = folder.path(f"stl/{p.name}.stl")
-            cad.write_stl(p.shape, stl, deflection)
+            if p is body:  # pointed ends: the writer drops the tips' zero-area triangles
+                cad.write_body_stl(p.shape, stl, deflection)
+            else:
+                cad.write_stl(p.shape, stl, deflection)
             solid_volume = cad.volume(p.shape)
             part_checks, meshes[p.name] = checks.stl_checks(p.name, stl, solid_volume)
             results += part_checks
             part_rows.append((p.name, solid_volume, deflection))
-        stage(f"wrote {len(built.parts)} STL files")
+        stage(f"wrote {len(parts)} STL files")
         results += checks.surface_checks(built, dirs)
-        results += checks.step_checks(cad.read_step(step_path), built.parts)
+        if body is not None:
+            results += checks.fuselage_checks(
+                body.shape, stations, d.solids.tessellation * body.local_chord_min
+            )
+        results += checks.step_checks(cad.read_step(step_path), parts)
         stage(f"ran {len(results)} checks")
         failed = tuple(f"{c.part}: {c.name}" for c in results if not c.passed)
         if failed:

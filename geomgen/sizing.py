@@ -142,9 +142,7 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
     arms: dict[str, float] = {}
     optimum = [t for t in tails if t.tail_arm is None]
     if optimum:
-        if design.tail_cone_radii is None:  # checked at load time
-            raise InputError("missing required key", source=design.source, path="tail_cone")
-        r1, r2 = design.tail_cone_radii
+        r1, r2 = _tail_cone_radii(design)
         terms = sum(t.volume_coefficient * reference[t.key] for t in optimum)
         arm = optimum_tail_arm(area, terms, r1, r2)
         rule = TailArmRule(
@@ -173,6 +171,27 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
         vertical_tail=sized.get("vertical_tail"),
         tail_arm_rule=rule,
     )
+
+
+def _tail_cone_radii(design: Design) -> tuple[float, float]:
+    """Tail-cone radii (m) for the minimum-wetted-area arm: from the fuselage when one is
+    given (equivalent radii sqrt(area / pi) where the body starts to shrink and at its end),
+    else from the design's tail_cone."""
+    if design.fuselage is not None:
+        from .fuselage import expand, tail_cone_radii
+
+        front, rear = tail_cone_radii(expand(design.fuselage))
+        if not front > rear:
+            raise InputError(
+                f"the body does not narrow toward the tail (equivalent radii {front:.3f} m "
+                f"and {rear:.3f} m), so it has no tail cone for the optimum tail arm",
+                source=design.source,
+                path="fuselage",
+            )
+        return front, rear
+    if design.tail_cone_radii is None:  # checked at load time
+        raise InputError("missing required key", source=design.source, path="tail_cone")
+    return design.tail_cone_radii
 
 
 def _panels(spec: SurfaceSpec) -> tuple[PanelInput, ...]:

@@ -25,6 +25,11 @@ class Tolerances:
     #: meshes used only for the projected-area checks are this many times coarser than the
     #: STL tolerance (a chordal deviation changes a projected area to second order only)
     area_mesh_coarsening: float = 4.0
+    #: the fuselage's solid volume vs the integral of its section areas along x, relative
+    body_volume_vs_sections: float = 0.01
+    #: the fuselage's surface area vs the integral of its section perimeters (times the slope
+    #: factor) plus its flat end faces, relative
+    body_area_vs_perimeters: float = 0.01
 
 
 TOLERANCES = Tolerances()

@@ -21,6 +21,7 @@ PURE = [
     "airfoils.py",
     "report.py",
     "sections.py",
+    "fuselage.py",
     "drawing.py",
     "shopfiles.py",
     "templates.py",
