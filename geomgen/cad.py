@@ -32,6 +32,7 @@ from OCP.BRepOffsetAPI import BRepOffsetAPI_ThruSections
 from OCP.gp import gp_Pnt, gp_Trsf
 from OCP.GProp import GProp_GProps
 from OCP.IMeshTools import IMeshTools_Parameters
+from OCP.ShapeUpgrade import ShapeUpgrade_ShapeDivideClosed
 from OCP.StlAPI import StlAPI_Writer
 from OCP.TopAbs import TopAbs_Orientation
 from OCP.TopLoc import TopLoc_Location
@@ -661,6 +662,13 @@ def build_fuselage(
         raise GeometryError(
             f"the loft gave {len(shape.Solids())} solids, not one", part=part, operation="loft"
         )
+    # Split the closed (periodic) side face in two: measured here, the face as lofted did not
+    # survive the STEP round trip (read back invalid and 1.8 % short in volume); split, the
+    # body reads back valid with the same volume to 1e-10.
+    splitter = ShapeUpgrade_ShapeDivideClosed(shape.wrapped)
+    splitter.SetNbSplitPoints(1)
+    splitter.Perform()
+    shape = cq.Shape.cast(splitter.Result())
     # Measured on the demo body: at eps 1e-8 the volume takes 5-10 s, at 1e-5 0.05 s and agrees
     # within 2e-6; both are remembered now, before any meshing slows the integration down.
     volume(shape, eps=1e-5)
