@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import math
 import textwrap
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
@@ -114,9 +114,12 @@ class _Geometry:
     controls: tuple[_Control, ...]
     mgcs: tuple[_Mgc, ...]
     symmetric: dict[str, bool]
+    body: dict[str, tuple[Point, ...]] = field(default_factory=dict)  # view name -> outline
 
     def points(self) -> list[Point]:
         pts = [c.point for _, _, cs in self.outlines for c in cs]
+        for outline in self.body.values():
+            pts += list(outline)
         for c in self.controls:
             pts += list(c.hinge) + list(c.trailing_edge)
         for m in self.mgcs:
@@ -146,7 +149,25 @@ def _geometry(layout: Layout) -> _Geometry:
         controls=tuple(controls),
         mgcs=tuple(mgcs),
         symmetric={sl.key: sl.sizing.planform.symmetric for sl in layout.surfaces},
+        body=_body_outlines(layout),
     )
+
+
+def _body_outlines(layout: Layout) -> dict[str, tuple[Point, ...]]:
+    """The fuselage's outline in each view (aircraft frame, m): half widths in plan, half
+    heights in side view, the largest section in front view; empty without a fuselage."""
+    spec = layout.sizing.design.fuselage
+    if spec is None:
+        return {}
+    from .fuselage import expand, section_area, section_points
+
+    st = expand(spec)
+    plan = [(s.x, s.width / 2, s.z) for s in st] + [(s.x, -s.width / 2, s.z) for s in st[::-1]]
+    side = [(s.x, 0.0, s.z + s.height / 2) for s in st]
+    side += [(s.x, 0.0, s.z - s.height / 2) for s in st[::-1]]
+    largest = max(st, key=section_area)
+    front = [tuple(float(v) for v in p) for p in section_points(largest, 72)]
+    return {"plan": tuple(plan), "side": tuple(side), "front": tuple(front)}
 
 
 def _mgcs(sl: SurfaceLayout) -> list[_Mgc]:
@@ -416,6 +437,9 @@ def _frame(sheet: _Sheet) -> None:
 
 
 def _outlines(sheet: _Sheet, geo: _Geometry, view: _View) -> None:
+    body = geo.body.get(view.proj.name)
+    if body:
+        sheet.polygon([view(p) for p in body], lw=LW_OUTLINE, gid=f"body-{view.proj.name}", z=2.4)
     for key, side, cs in geo.outlines:
         pts = [view(c.point) for c in cs]
         sheet.polygon(pts, lw=LW_OUTLINE, gid=f"outline-{view.proj.name}-{key}-{side}", z=2.5)
