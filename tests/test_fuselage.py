@@ -603,3 +603,20 @@ def test_build_writes_a_valid_fuselage_that_survives_the_step_round_trip(tmp_pat
     assert ("fuselage", "STEP read-back volume") in names
     assert ("fuselage", "body volume vs integral of section areas") in names
     assert (folder / "stl" / "fuselage.stl").stat().st_size > 0
+
+
+def test_three_view_draws_the_body_in_every_view(tmp_path: Path) -> None:
+    doc = body_document()
+    doc["fuselage"] = DEMO_BODY
+    path = tmp_path / "body.yaml"
+    path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
+    assert main(["size", str(path), "--out", str(tmp_path / "out")]) == 0
+    svg = (tmp_path / "out" / doc["name"] / "three-view.svg").read_text(encoding="utf-8")
+    for view in ("plan", "side", "front"):
+        assert f'id="body-{view}"' in svg
+    # without a fuselage there is no body outline
+    plain = tmp_path / "plain.yaml"
+    plain.write_text(yaml.safe_dump(demo_document(), sort_keys=False), encoding="utf-8")
+    assert main(["size", str(plain), "--out", str(tmp_path / "out2")]) == 0
+    svg = (tmp_path / "out2" / "veyra-t2" / "three-view.svg").read_text(encoding="utf-8")
+    assert 'id="body-plan"' not in svg
