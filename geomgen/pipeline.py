@@ -9,7 +9,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
-from .errors import GeometryError
+from .errors import GeometryError, InputError
 from .output import OutputFolder
 
 PROFILES_DIR = Path(__file__).resolve().parent.parent / "profiles"
@@ -97,8 +97,6 @@ def run_build(
         known = set(layout.part_names) | ({"fuselage"} if d.fuselage else set())
         unknown = sorted(only - known)
         if unknown:
-            from .errors import InputError
-
             raise InputError(
                 f"unknown part {unknown[0]!r}; parts of this design: {', '.join(sorted(known))}",
                 path="--only",

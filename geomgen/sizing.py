@@ -128,7 +128,7 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
         stall_speed_achieved=math.sqrt(2 * req.gross_weight / (atm.density * area * req.cl_max)),
         wing_loading=req.gross_weight / area,
     )
-    wing_pf = _planform(wing_spec, area, design.source)
+    wing_pf = _planform(wing_spec, area)
     if wing_spec.apex_x is None:  # the schema requires it; keep the type checker honest
         raise InputError("missing required key", source=design.source, path="wing.apex.x")
     wing = _surface_sizing(
@@ -158,7 +158,7 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
     for t in tails:
         arm = arms[t.key]
         tail_area = t.volume_coefficient * area * reference[t.key] / arm
-        pf = _planform(t, tail_area, design.source)
+        pf = _planform(t, tail_area)
         apex_x = wing_qc_x + arm - pf.mgc_quarter_chord_x
         achieved = tail_area * arm / (area * reference[t.key])
         sized[t.key] = _surface_sizing(t, pf, apex_x, achieved, arm, airfoil_dirs, design.source)
@@ -208,7 +208,7 @@ def _panels(spec: SurfaceSpec) -> tuple[PanelInput, ...]:
     )
 
 
-def _planform(spec: SurfaceSpec, area: float, source: str) -> Planform:
+def _planform(spec: SurfaceSpec, area: float) -> Planform:
     return build_planform(
         spec.key,
         area=area,
