@@ -358,8 +358,9 @@ def _deflect(
 
 
 def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None) -> Build:
-    """Loft every surface side, cut its control surfaces free, deflect them; ``only`` limits
-    the build to the named parts' surfaces (part names as in the report)."""
+    """Loft every surface side, cut its control surfaces free, deflect them, and loft the
+    fuselage when there is one; ``only`` limits the build to the named parts' surfaces (part
+    names as in the report)."""
     d = layout.sizing.design
     points, te = d.solids.section_points, d.solids.te_thickness
     sides: list[SideBuild] = []
@@ -400,6 +401,21 @@ def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None) -> Bui
                         chord_min * MM,
                     )
                 )
+    if layout.body is not None and (only is None or "fuselage" in only):
+        body = layout.body
+        size_min = min(max(st.width for st in body), max(st.height for st in body))
+        parts.append(
+            Part(
+                "fuselage",
+                "fuselage",
+                "fuselage",
+                "centre",
+                build_fuselage(body),
+                False,
+                0.0,
+                size_min * MM,
+            )
+        )
     return Build(layout=layout, sides=tuple(sides), parts=tuple(parts))
 
 

@@ -15,6 +15,7 @@ import trimesh
 
 from . import cad, fuselage
 from .fuselage import BodyStation
+from .junction import area_between, contains, station_of
 from .layout import fixed_part_name
 from .sections import volume_from_sections
 from .tolerances import TOLERANCES
@@ -106,7 +107,7 @@ def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
         ss = sl.sizing
         name = fixed_part_name(sl.key, sb.side)
         whole_volume = cad.volume(sb.whole)
-        expected_volume = volume_from_sections(ss, points, te, dirs) * MM**3
+        expected_volume = volume_from_sections(ss, points, te, dirs, start=sl.mount_s) * MM**3
         out.append(
             _rel(
                 "surface volume vs integral of section areas",
@@ -127,7 +128,7 @@ def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
                 "projected area vs sizing area",
                 name,
                 projected_area(whole_mesh, view),
-                ss.planform.side_area * MM**2,
+                area_between(ss.planform, sl.mount_s, ss.planform.semi_span) * MM**2,
                 t.projected_area,
                 "mm^2",
             )
@@ -188,6 +189,54 @@ def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
                     "mm^3",
                 )
             )
+    return out
+
+
+def junction_checks(build: cad.Build, meshes: dict) -> list[Check]:
+    """Checks of every surface side mounted on the fuselage, on its STL mesh (mm): the points
+    of its root end lie inside the body (so a union of the parts would be closed), and no
+    point outside the body lies inboard of where the surface's skin meets the body side (a
+    surface that pierced out of the far side of the body would have some)."""
+    t = TOLERANCES
+    body = build.layout.body
+    out: list[Check] = []
+    if body is None:
+        return out
+    for sb in build.sides:
+        sl, j = sb.surface, sb.surface.junction
+        name = fixed_part_name(sl.key, sb.side)
+        if j is None or name not in meshes:
+            continue
+        vertices = meshes[name][0] / MM
+        s = station_of(sl.sizing, sb.side, vertices)
+        near = s < j.side_max + 0.25 * sl.sizing.planform.root_chord
+        inside = np.zeros(len(vertices), dtype=bool)
+        inside[near] = contains(body, vertices[near])
+        root_end = s <= j.mount_s + t.junction_band
+        if j.root_inside:
+            out.append(
+                _abs(
+                    "root-end mesh points outside the body",
+                    name,
+                    float(np.count_nonzero(root_end & ~inside)),
+                    0.0,
+                    0.0,
+                    "points",
+                )
+            )
+            limit = j.skin_min - t.junction_slack * sl.sizing.planform.root_chord
+        else:  # the halves join at the plane of symmetry (or a fin keeps its root)
+            limit = j.mount_s - t.junction_band
+        out.append(
+            _abs(
+                "mesh points outside the body inboard of its side (far-side piercing)",
+                name,
+                float(np.count_nonzero(~inside & (s < limit))),
+                0.0,
+                0.0,
+                "points",
+            )
+        )
     return out
 
 

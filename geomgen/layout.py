@@ -15,12 +15,17 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from . import airfoils
 from .errors import InputError
 from .sizing import Sizing, SurfaceSizing
+
+if TYPE_CHECKING:  # the junction module builds on this one
+    from .design import BodyStation
+    from .junction import Junction
 
 Point = tuple[float, float, float]
 
@@ -86,10 +91,17 @@ class SurfaceLayout:
     corners: tuple[PanelCorners, ...]
     controls: tuple[ControlLayout, ...]
     hinge_comparison: HingeComparison | None
+    junction: Junction | None = None  # where it meets the fuselage, when there is one
 
     @property
     def key(self) -> str:
         return self.sizing.key
+
+    @property
+    def mount_s(self) -> float:
+        """Spanwise station (m) where the surface's solid starts: the root, or inside the
+        fuselage by a small overlap when the surface is mounted on one."""
+        return 0.0 if self.junction is None else self.junction.mount_s
 
     @property
     def sides(self) -> tuple[str, ...]:
@@ -100,6 +112,7 @@ class SurfaceLayout:
 class Layout:
     sizing: Sizing
     surfaces: tuple[SurfaceLayout, ...]
+    body: tuple[BodyStation, ...] | None = None  # the fuselage's stations, when there is one
 
     def surface(self, key: str) -> SurfaceLayout:
         return next(s for s in self.surfaces if s.key == key)

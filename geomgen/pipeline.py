@@ -22,12 +22,13 @@ def airfoil_dirs(design_path: Path) -> tuple[Path, ...]:
 
 def _size(design_path: Path):
     from . import design as design_module
+    from .junction import mount
     from .layout import lay_out
     from .sizing import size
 
     dirs = airfoil_dirs(design_path)
     d = design_module.load(design_path)
-    return d, lay_out(size(d, dirs), dirs), dirs
+    return d, mount(lay_out(size(d, dirs), dirs), dirs), dirs
 
 
 def _write_reports(folder: OutputFolder, layout, system: str) -> None:
@@ -105,23 +106,7 @@ def run_build(
 
     built = cad.build(layout, dirs, only)
     parts = built.parts
-    body = None
-    if d.fuselage is not None and (only is None or "fuselage" in only):
-        from .fuselage import expand
-
-        stations = expand(d.fuselage)
-        size_min = min(max(st.width for st in stations), max(st.height for st in stations))
-        body = cad.Part(
-            "fuselage",
-            "fuselage",
-            "fuselage",
-            "centre",
-            cad.build_fuselage(stations),
-            False,
-            0.0,
-            size_min * cad.MM,
-        )
-        parts = (*parts, body)
+    body = next((p for p in parts if p.name == "fuselage"), None)
     stage(f"built {len(parts)} solids")
     results: list = []
     part_rows = []
@@ -150,9 +135,10 @@ def run_build(
             part_rows.append((p.name, solid_volume, deflection))
         stage(f"wrote {len(parts)} STL files")
         results += checks.surface_checks(built, dirs)
+        results += checks.junction_checks(built, meshes)
         if body is not None:
             results += checks.fuselage_checks(
-                body.shape, stations, d.solids.tessellation * body.local_chord_min
+                body.shape, layout.body, d.solids.tessellation * body.local_chord_min
             )
         results += checks.step_checks(cad.read_step(step_path), parts)
         stage(f"ran {len(results)} checks")

@@ -99,7 +99,8 @@ class Planform:
 
     def section_weight(self, s: float) -> tuple[int, float]:
         """(i, w): the section at s is (1 - w) x section of stations[i] + w x section of
-        stations[i+1], in unit-chord coordinates.
+        stations[i+1], in unit-chord coordinates (w in [0, 1]: outside the stations, the
+        nearest station's section).
 
         A straight-tapered panel is a ruled surface between its end sections: its section at
         s interpolates the *physical* sections linearly, so the unit-chord shape is weighted
@@ -110,7 +111,8 @@ class Planform:
         a, b = self.stations[i], self.stations[i + 1]
         t = (s - a.s) / (b.s - a.s)
         chord = a.chord + t * (b.chord - a.chord)
-        return i, t * b.chord / chord
+        # beyond the root (a fin extended down to the fuselage) the section is the root's
+        return i, min(max(t * b.chord / chord, 0.0), 1.0)
 
     def sweep(self, fraction: float, panel: int | None = None) -> float:
         """Sweep angle (rad) of the line at chord ``fraction``; whole surface root-to-tip if

@@ -8,6 +8,7 @@ import math
 from typing import Any
 
 from . import __version__
+from .junction import area_between
 from .layout import Layout, SurfaceLayout
 from .units import SI_UNITS, to_output
 
@@ -74,7 +75,30 @@ def report_data(layout: Layout) -> dict[str, Any]:
         "surfaces": {s.key: _surface_data(s) for s in layout.surfaces},
         "tails": _tails_data(layout),
     }
+    if layout.body is not None:
+        data["fuselage"] = _body_data(layout)
     return data
+
+
+def _body_data(layout: Layout) -> dict[str, Any]:
+    from . import fuselage
+
+    body = layout.body
+    assert body is not None
+    front, rear = fuselage.tail_cone_radii(body)
+    return {
+        "station_count": _num(len(body)),
+        "nose_x": _q(body[0].x, "length"),
+        "length": _q(body[-1].x - body[0].x, "length"),
+        "max_width": _q(max(st.width for st in body), "length"),
+        "max_height": _q(max(st.height for st in body), "length"),
+        "volume_by_sections": _q(fuselage.volume_by_sections(body), "volume"),
+        "wetted_area_by_perimeters": _q(fuselage.wetted_area_by_perimeters(body), "area"),
+        "tail_cone_equivalent_radii": {
+            "front": _q(front, "length"),
+            "rear": _q(rear, "length"),
+        },
+    }
 
 
 def _surface_data(sl: SurfaceLayout) -> dict[str, Any]:
@@ -165,6 +189,18 @@ def _surface_data(sl: SurfaceLayout) -> dict[str, Any]:
         "corners": corners,
         "hinge_lines": hinges,
     }
+    if sl.junction is not None:
+        j = sl.junction
+        out["fuselage_junction"] = {
+            "body_side_station_min": _q(j.side_min, "length"),
+            "body_side_station_max": _q(j.side_max, "length"),
+            "solid_root_station": _q(j.mount_s, "length"),
+            "solid_root_inside_body": j.root_inside,
+            "reference_area": _q(j.reference_area, "area"),
+            "exposed_area": _q(j.exposed_area, "area"),
+            "exposed_wetted_area": _q(j.exposed_wetted_area, "area"),
+            "solid_planform_area_one_side": _q(area_between(pf, j.mount_s, pf.semi_span), "area"),
+        }
     if sl.hinge_comparison is not None:
         h = sl.hinge_comparison
         out["elevator_hinge_comparison"] = {
@@ -220,7 +256,17 @@ def _tails_data(layout: Layout) -> dict[str, Any]:
             "optimum_arm": _q(r.optimum_arm, "length"),
             "cone_wetted_area": _q(r.cone_wetted_area, "area"),
             "tail_wetted_area": _q(r.tail_wetted_area, "area"),
+            "tail_wetted_area_assumption": "2 (S_H + S_V) on the reference areas",
         }
+        exposed = [
+            sl.junction.exposed_wetted_area
+            for sl in layout.surfaces
+            if sl.key != "wing" and sl.junction is not None
+        ]
+        if exposed:
+            out["minimum_wetted_area_rule"]["tail_exposed_wetted_area_at_this_arm"] = _q(
+                sum(exposed), "area"
+            )
     return out
 
 
@@ -294,7 +340,19 @@ def to_markdown(layout: Layout, system: str) -> str:
     keys = [s.key for s in layout.surfaces]
     for label, getter in _SURFACE_ROWS:
         rows.append([label] + [getter(layout.surface(k), f) for k in keys])
+    if layout.body is not None:
+        for label, getter in _JUNCTION_ROWS:
+            rows.append(
+                [label]
+                + [
+                    "-"
+                    if layout.surface(k).junction is None
+                    else getter(layout.surface(k).junction, f)
+                    for k in keys
+                ]
+            )
     lines += _table(["quantity"] + [SURFACE_TITLES[k] for k in keys], rows)
+    lines += _body_markdown(layout, f)
     lines += _tails_markdown(layout, f)
     for sl in layout.surfaces:
         lines += _corners_markdown(sl, f)
@@ -326,8 +384,45 @@ _SURFACE_ROWS = [
     ("apex x", lambda s, f: f(s.sizing.apex_x, "length")),
     ("apex z", lambda s, f: f(s.sizing.apex_z, "length")),
     ("mean t/c", lambda s, f: f"{s.sizing.thickness_ratio:.4f}"),
-    ("wetted area (Raymer estimate)", lambda s, f: f(s.sizing.wetted_area, "area")),
+    ("wetted area (Raymer, on the reference area)", lambda s, f: f(s.sizing.wetted_area, "area")),
 ]
+
+_JUNCTION_ROWS = [
+    ("fuselage side, spanwise station", lambda j, f: _range(j.side_min, j.side_max, f)),
+    ("solid starts at station (inside the body)", lambda j, f: f(j.mount_s, "length")),
+    ("exposed area (outboard of the body side)", lambda j, f: f(j.exposed_area, "area")),
+    ("exposed wetted area (Raymer)", lambda j, f: f(j.exposed_wetted_area, "area")),
+]
+
+
+def _range(lo: float, hi: float, f) -> str:
+    return f(lo, "length") if abs(hi - lo) < 5e-4 else f"{f(lo, 'length')} to {f(hi, 'length')}"
+
+
+def _body_markdown(layout: Layout, f: _Fmt) -> list[str]:
+    if layout.body is None:
+        return []
+    b = _body_data(layout)
+    radii = b["tail_cone_equivalent_radii"]
+    return ["## Fuselage", ""] + _table(
+        ["quantity", "value"],
+        [
+            ["stations (as lofted)", str(b["station_count"]["value"])],
+            ["nose x", f(b["nose_x"]["value"], "length")],
+            ["length", f(b["length"]["value"], "length")],
+            ["largest width", f(b["max_width"]["value"], "length")],
+            ["largest height", f(b["max_height"]["value"], "length")],
+            ["volume (integral of section areas)", f(b["volume_by_sections"]["value"], "volume")],
+            [
+                "wetted area (integral of section perimeters)",
+                f(b["wetted_area_by_perimeters"]["value"], "area"),
+            ],
+            [
+                "tail-cone equivalent radii, front and rear",
+                f"{f(radii['front']['value'], 'length')}, {f(radii['rear']['value'], 'length')}",
+            ],
+        ],
+    )
 
 
 def _tails_markdown(layout: Layout, f: _Fmt) -> list[str]:
@@ -363,9 +458,21 @@ def _tails_markdown(layout: Layout, f: _Fmt) -> list[str]:
         lines += [
             f"Minimum-wetted-area tail arm with tail-cone radii {f(r.cone_radii[0], 'length')} "
             f"and {f(r.cone_radii[1], 'length')}: {f(r.optimum_arm, 'length')} (cone wetted "
-            f"area {f(r.cone_wetted_area, 'area')}, tails {f(r.tail_wetted_area, 'area')}).",
+            f"area {f(r.cone_wetted_area, 'area')}, tails {f(r.tail_wetted_area, 'area')} "
+            f"taken as 2 (S_H + S_V) on the reference areas).",
             "",
         ]
+        exposed = [
+            sl.junction.exposed_wetted_area
+            for sl in layout.surfaces
+            if sl.key != "wing" and sl.junction is not None
+        ]
+        if exposed:
+            lines += [
+                f"Exposed wetted area of the tails on this fuselage at that arm (Raymer): "
+                f"{f(sum(exposed), 'area')}.",
+                "",
+            ]
     return lines
 
 

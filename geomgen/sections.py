@@ -85,34 +85,48 @@ def placed_section(
 def surface_sections(
     sl: SurfaceLayout, side: str, points: int, te_thickness: float, dirs: tuple = ()
 ) -> SurfaceSections:
-    """Sections of one side of a surface at its stations (root, breaks, tip)."""
+    """Sections of one side of a surface at its stations: the root (or the mount station
+    inside the fuselage, when the surface is mounted on one), the breaks outboard of it, the
+    tip."""
     ss = sl.sizing
     return SurfaceSections(
         key=sl.key,
         side=side,
         sections=tuple(
-            placed_section(ss, side, st.s, points, te_thickness, dirs)
-            for st in ss.planform.stations
+            placed_section(ss, side, s, points, te_thickness, dirs)
+            for s in stations_from(ss, sl.mount_s)
         ),
     )
 
 
+def stations_from(ss: SurfaceSizing, start: float) -> tuple[float, ...]:
+    """Spanwise stations of a solid that starts at ``start`` (m): it, then every panel break
+    outboard of it and the tip."""
+    return (start, *(st.s for st in ss.planform.stations if st.s > start + 1e-9))
+
+
 def volume_from_sections(
-    ss: SurfaceSizing, points: int, te_thickness: float, dirs: tuple = (), per_panel: int = 24
+    ss: SurfaceSizing,
+    points: int,
+    te_thickness: float,
+    dirs: tuple = (),
+    per_panel: int = 24,
+    start: float = 0.0,
 ) -> float:
-    """Volume of one side (m^3) as the integral of section area along the span (Cavalieri:
-    sections lie in parallel planes perpendicular to the span axis), by Simpson's rule on
-    ``per_panel`` intervals in each panel. Independent of the CAD loft."""
+    """Volume of one side (m^3) from station ``start`` to the tip as the integral of section
+    area along the span (Cavalieri: sections lie in parallel planes perpendicular to the span
+    axis), by Simpson's rule on ``per_panel`` intervals in each panel. Independent of the CAD
+    loft."""
     total = 0.0
-    stations = ss.planform.stations
+    stations = stations_from(ss, start)
     for a, b in zip(stations, stations[1:], strict=False):
-        s = np.linspace(a.s, b.s, 2 * per_panel + 1)
+        s = np.linspace(a, b, 2 * per_panel + 1)
         areas = np.array(
             [
                 unit_section(ss, v, points, te_thickness, dirs).area * ss.planform.at(v)[1] ** 2
                 for v in s
             ]
         )
-        h = (b.s - a.s) / (2 * per_panel)
+        h = (b - a) / (2 * per_panel)
         total += h / 3 * (areas[0] + areas[-1] + 4 * areas[1:-1:2].sum() + 2 * areas[2:-1:2].sum())
     return float(total)

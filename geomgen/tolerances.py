@@ -30,6 +30,13 @@ class Tolerances:
     #: the fuselage's surface area vs the integral of its section perimeters (times the slope
     #: factor) plus its flat end faces, relative
     body_area_vs_perimeters: float = 0.01
+    #: mesh points of a mounted surface within this distance of its root plane must lie inside
+    #: the body (m); and no point outside the body may lie more than this inboard of the
+    #: least station where the surface's skin meets the body (a far-side piercing would)
+    junction_band: float = 1e-4
+    #: the same as a fraction of the surface's root chord for the pierce check (the mesh's
+    #: chordal error lets skin points near the joint wander slightly inboard)
+    junction_slack: float = 0.005
 
 
 TOLERANCES = Tolerances()

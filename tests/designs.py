@@ -19,6 +19,20 @@ def demo_document() -> dict:
     return copy.deepcopy(yaml.safe_load(DEMO.read_text()))
 
 
+#: tail-cone radii standing in for the fuselage in designs without one (the optimum tail arm
+#: needs them)
+TAIL_CONE = {"front_radius": "0.45 m", "rear_radius": "0.1 m"}
+
+
+def bodyless_document() -> dict:
+    """The demo without its fuselage, the tail-cone radii given instead: for tests of sizing,
+    layout and solids that a body would change (mounting, exposed areas)."""
+    doc = demo_document()
+    doc.pop("fuselage")
+    doc["tail_cone"] = dict(TAIL_CONE)
+    return doc
+
+
 def make_design(document: dict) -> design.Design:
     return design.from_mapping(document, source="test.yaml")
 
@@ -30,8 +44,9 @@ def trapezoid_document(
     sweep: str = "0 deg",
     sweep_at: float = 0.25,
 ) -> dict:
-    """A plain trapezoidal wing with no incidence, twist or dihedral, plus the demo's tails."""
-    doc = demo_document()
+    """A plain trapezoidal wing with no incidence, twist or dihedral, plus the demo's tails
+    (no fuselage)."""
+    doc = bodyless_document()
     wing = doc["wing"]
     wing.pop("panels")
     wing.update(

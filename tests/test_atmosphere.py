@@ -84,12 +84,14 @@ def test_tabulated_values(altitude, kind, temperature, pressure, density):
 @pytest.fixture(scope="module")
 def ambiance_reference():
     import ambiance  # a test dependency: missing means a failed test, not a skip
+
     return ambiance.Atmosphere(np.array(GEOMETRIC_ALTITUDES))  # takes GEOMETRIC altitude
 
 
 @pytest.fixture(scope="module")
 def ussa1976_reference():
     import ussa1976
+
     # compute() takes GEOMETRIC altitude z (m) as an array and returns an xarray Dataset.
     return ussa1976.compute(z=np.array(GEOMETRIC_ALTITUDES), variables=["t", "p", "rho", "cs"])
 

@@ -138,7 +138,7 @@ CASES = [
     Case("duplicate-key", raw(DEMO_TEXT + "name: second-name\n"), None, "written twice"),
     Case(
         "python-object-tag",
-        raw("name: !!python/object/apply:os.system [\"echo unsafe\"]\n"),
+        raw('name: !!python/object/apply:os.system ["echo unsafe"]\n'),
         None,
         "malformed YAML",
     ),
@@ -337,7 +337,10 @@ CASES = [
     ),
     # --- tails ---
     Case(
-        "optimum-arm-without-tail-cone", from_demo(drop("tail_cone")), "tail_cone", "front_radius"
+        "optimum-arm-without-body-or-tail-cone",
+        from_demo(drop("fuselage")),
+        "tail_cone",
+        "front_radius",
     ),
     Case(
         "tail-overlaps-wing",

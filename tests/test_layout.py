@@ -132,7 +132,8 @@ def test_common_elevator_hinge_is_perpendicular_to_the_plane_of_symmetry(demo_la
     pf = sl.sizing.planform
     # local fraction at the outer end follows from the geometry of the tapered, swept tail
     x_le, chord, _, _ = pf.at(right.s_end)
-    x_h = pf.at(0.0)[0] + 0.62 * pf.root_chord
+    x_le0, chord0, _, _ = pf.at(right.s_start)
+    x_h = x_le0 + 0.62 * chord0  # hinge_at 0.62 applies at the inner end
     expected = (x_h - x_le) / chord
     assert right.hinge[-1].chord_fraction == pytest.approx(expected, rel=1e-12)
     assert expected > 0.62  # LE sweeps back faster than the hinge: the fraction grows

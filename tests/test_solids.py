@@ -54,6 +54,7 @@ DEMO_PARTS = (
     "elevator-right",
     "fin",
     "rudder",
+    "fuselage",
 )
 MOVING = (
     "flap-right",
@@ -526,14 +527,60 @@ def test_checks_json_records_every_check_as_passed(demo: CliRun, report: dict) -
     assert sorted(areas) == sorted(
         ["wing-right", "wing-left", "stabilizer-right", "stabilizer-left", "fin"]
     )
-    # what they compare with is the report's area of one side (the fin is one-sided)
+    # what they compare with is the planform of one side (the fin is one-sided) outboard of
+    # the station where the mounted solid starts inside the fuselage: the reference area
+    # minus the trapezoid between the root and that station, c(s) linear in the first panel
+    # (plane geometry: trapezoid area = width x mean of the parallel sides)
     for part, c in areas.items():
         key = {"wing": "wing", "stabilizer": "horizontal_tail", "fin": "vertical_tail"}[
             part.split("-")[0]
         ]
+        surface = report["surfaces"][key]
         sides = 1 if key == "vertical_tail" else 2
-        one_side = report["surfaces"][key]["area"]["value"] / sides * MM**2
-        assert c["expected"] == pytest.approx(one_side, rel=1e-9)
+        s0 = surface["fuselage_junction"]["solid_root_station"]["value"]
+        st = surface["stations"]
+        c_root, c_next = st[0]["chord"]["value"], st[1]["chord"]["value"]
+        s_next = st[1]["span_position"]["value"]
+        c0 = c_root + (c_next - c_root) * s0 / s_next
+        solid = surface["area"]["value"] / sides - s0 * (c_root + c0) / 2
+        assert c["expected"] == pytest.approx(solid * MM**2, rel=1e-9)
+
+
+def test_demo_surfaces_are_mounted_on_the_fuselage(report: dict) -> None:
+    # each surface's solid starts inside the body and its exposed planform lies outboard of
+    # the body side: exposed < reference; the wing's exposed area is at least the reference
+    # minus the body's largest width times the root chord (the strip a straight side line
+    # through the body would take) and at most the reference minus the strip at the least
+    # side station (constant-chord centre panel: plane geometry)
+    wing = report["surfaces"]["wing"]
+    j = wing["fuselage_junction"]
+    c_root = wing["root_chord"]["value"]
+    area = wing["area"]["value"]
+    lo, hi = j["body_side_station_min"]["value"], j["body_side_station_max"]["value"]
+    assert 0 < lo <= hi <= report["fuselage"]["max_width"]["value"] / 2
+    assert area - 2 * hi * c_root - 1e-6 <= j["exposed_area"]["value"]
+    assert j["exposed_area"]["value"] <= area - 2 * lo * c_root + 1e-6
+    assert j["solid_root_station"]["value"] < lo
+    for key in ("horizontal_tail", "vertical_tail"):
+        jt = report["surfaces"][key]["fuselage_junction"]
+        assert jt["exposed_area"]["value"] < report["surfaces"][key]["area"]["value"]
+    # Raymer's wetted-area estimate on the exposed area (Raymer, Aircraft Design, ch. 7):
+    # S_wet = S_exposed (1.977 + 0.52 t/c) for t/c > 0.05
+    tc = wing["thickness_ratio"]["value"]
+    assert j["exposed_wetted_area"]["value"] == pytest.approx(
+        j["exposed_area"]["value"] * (1.977 + 0.52 * tc), rel=1e-12
+    )
+
+
+def test_demo_junction_checks_ran_and_passed(demo: CliRun) -> None:
+    data = json.loads((demo.out_root / "veyra-t2" / "checks.json").read_text(encoding="utf-8"))
+    found = {(c["part"], c["name"]) for c in data["checks"]}
+    for part in ("wing-right", "wing-left", "fin"):
+        assert (part, "root-end mesh points outside the body") in found
+    for part in ("wing-right", "wing-left", "stabilizer-right", "stabilizer-left", "fin"):
+        assert (part, "mesh points outside the body inboard of its side (far-side piercing)") in (
+            found
+        )
 
 
 # --- failing checks, --only ------------------------------------------------------------------

@@ -1,0 +1,284 @@
+"""Where the lifting surfaces meet the fuselage (pure numpy, no CAD).
+
+Spanwise station ``s`` as in the planform (a wing or horizontal-tail half: |y|; the fin: its
+height above its apex, z - apex_z). For each surface this module finds the body side along
+the root chord (the station where the surface's chord line leaves the body), the exposed
+planform outboard of it, and the station where the surface's solid starts: inside the body by
+a small overlap, so that a union of surface and body would be closed, while the parts stay
+separate. A fin whose apex lies above the body top is extended down to the body with the
+taper and sweep of its first panel.
+
+Frame: aircraft frame (x aft, y right, z up), metres.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import fuselage
+from .design import BodyStation
+from .errors import InputError
+from .layout import Layout, SurfaceLayout, place
+from .sizing import SurfaceSizing, wetted_area
+
+#: the solid's root section lies this fraction of the root chord inside the body side, measured
+#: from the innermost point where the section's surface meets the body (common practice: a few
+#: per cent of the chord is enough to close a union and small enough to stay clear of the far side)
+OVERLAP_FRACTION = 0.02
+#: loop points of the body sections used here (the body loft uses the same blend of stations)
+LOOP_POINTS = 256
+#: chord fractions sampled along the root chord
+_CHORD_SAMPLES = 41
+#: a fin may reach down to the body by at most this fraction of its root chord
+_MAX_EXTENSION = 0.5
+
+
+@dataclass(frozen=True)
+class Junction:
+    """One surface on the body (m, m^2). Areas of a symmetric surface are both halves."""
+
+    key: str
+    side_min: float  # least station of the body side along the root chord line
+    side_max: float  # greatest
+    skin_min: float  # least station where the root section's skin meets the body
+    mount_s: float  # station of the solid's root section (inside the body)
+    root_inside: bool  # the solid's root section lies wholly inside the body (a closed joint)
+    reference_area: float  # the sized (theoretical) area
+    exposed_area: float  # planform outboard of the body side
+    exposed_wetted_area: float  # Raymer's estimate on the exposed area
+    side_line: tuple[tuple[float, float], ...]  # (x, s) along the root chord, aircraft-frame x
+
+
+# --- the body at any x ------------------------------------------------------------------------
+
+
+def body_loops(stations: tuple[BodyStation, ...], xq: np.ndarray, n: int = LOOP_POINTS):
+    """Closed section loops of the body at each x in ``xq``: (len(xq), n, 2) (y, z), m, and a
+    mask of the x that lie within the body's length."""
+    xq = np.asarray(xq, dtype=float)
+    x0, x1 = stations[0].x, stations[-1].x
+    within = (xq >= x0) & (xq <= x1)
+    _, loops, _ = fuselage._blend(stations, np.clip(xq, x0, x1), False, n)
+    return loops, within
+
+
+def _crossings(loops: np.ndarray, along: int, at: np.ndarray) -> np.ndarray:
+    """Greatest coordinate ``along`` (0: y, 1: z) where each loop crosses the line on which
+    the other coordinate equals ``at`` (one value per loop); NaN where it does not cross."""
+    other = 1 - along
+    a, b = loops, np.roll(loops, -1, axis=1)
+    ca, cb = a[..., other] - at[:, None], b[..., other] - at[:, None]
+    crosses = (ca <= 0.0) != (cb <= 0.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = ca / (ca - cb)
+    value = a[..., along] + t * (b[..., along] - a[..., along])
+    value = np.where(crosses, value, -np.inf)
+    best = value.max(axis=1)
+    return np.where(np.isfinite(best), best, np.nan)
+
+
+def contains(stations: tuple[BodyStation, ...], points: np.ndarray) -> np.ndarray:
+    """Whether each point (N, 3), m, lies inside the body: within its length and inside the
+    section loop at its x (even-odd rule)."""
+    pts = np.asarray(points, dtype=float).reshape(-1, 3)
+    if len(pts) == 0:
+        return np.zeros(0, dtype=bool)
+    loops, within = body_loops(stations, pts[:, 0])
+    y, z = pts[:, 1][:, None], pts[:, 2][:, None]
+    a, b = loops, np.roll(loops, -1, axis=1)
+    straddle = (a[..., 1] > z) != (b[..., 1] > z)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        y_cross = a[..., 0] + (z - a[..., 1]) * (b[..., 0] - a[..., 0]) / (b[..., 1] - a[..., 1])
+    inside = (np.count_nonzero(straddle & (y_cross > y), axis=1) % 2) == 1
+    return inside & within
+
+
+# --- one surface ---------------------------------------------------------------------------------
+
+
+def station_of(ss: SurfaceSizing, side: str, points: np.ndarray) -> np.ndarray:
+    """Spanwise station of aircraft-frame points (N, 3) on a surface side (m)."""
+    if not ss.planform.symmetric:
+        return points[:, 2] - ss.apex_z
+    return points[:, 1] if side == "right" else -points[:, 1]
+
+
+def _body_side(
+    ss: SurfaceSizing, stations: tuple[BodyStation, ...], unit: np.ndarray, guess: np.ndarray
+) -> np.ndarray:
+    """Station s at which each unit-chord point (x/c, y/c) of the section placed at s lies on
+    the body surface (right side of a symmetric surface), by fixed-point iteration: placing
+    the section moves it only slightly out of its plane as s changes (dihedral, taper)."""
+    fin = not ss.planform.symmetric
+    side = "centre" if fin else "right"
+    s = guess.astype(float).copy()
+    for _ in range(6):
+        pts = np.array([place(ss, side, si, p[None, :])[0] for si, p in zip(s, unit, strict=True)])
+        loops, within = body_loops(stations, pts[:, 0])
+        if fin:  # the body's top above the point's butt line
+            found = _crossings(loops, 1, pts[:, 1]) - ss.apex_z
+        else:  # the body's side at the point's water line
+            found = _crossings(loops, 0, pts[:, 2])
+        found = np.where(within, found, np.nan)
+        if np.all(np.isnan(found)):
+            return found
+        done = np.nanmax(np.abs(found - s)) < 1e-7
+        s = np.where(np.isnan(found), s, found)
+        if done:
+            break
+    return np.where(np.isnan(found), np.nan, s)
+
+
+def _chord_line(n: int) -> np.ndarray:
+    f = 0.5 * (1.0 - np.cos(np.linspace(0.0, np.pi, n)))
+    return np.column_stack([f, np.zeros(n)])
+
+
+def _exposed_side_area(ss: SurfaceSizing, side_x: np.ndarray, side_s: np.ndarray) -> float:
+    """Planform area of one side outboard of the body-side line s_b(x), m^2, by a midpoint
+    grid over the strip of the planform the line crosses (exact elsewhere)."""
+    pf = ss.planform
+    s_lo = min(0.0, float(side_s.min()))
+    s_hi = float(side_s.max())
+    outboard = area_between(pf, s_hi, pf.semi_span)
+    m = 400
+    edges = np.linspace(s_lo, s_hi, m + 1)
+    total = 0.0
+    order = np.argsort(side_x)
+    sx, sv = side_x[order], side_s[order]
+    for s in 0.5 * (edges[:-1] + edges[1:]):
+        x_le, chord, _, _ = pf.at(float(s))
+        x = ss.apex_x + x_le + chord * (np.arange(m) + 0.5) / m
+        beyond = s > np.interp(x, sx, sv)
+        total += chord * np.count_nonzero(beyond) / m
+    return outboard + total * (s_hi - s_lo) / m
+
+
+def area_between(pf, s0: float, s1: float) -> float:
+    """Planform area between stations s0 < s1 of one side (m^2), exact for straight-tapered
+    panels (trapezoids between the panel breaks; s0 < 0 extends the first panel)."""
+    nodes = [s0] + [st.s for st in pf.stations if s0 < st.s < s1] + [s1]
+    chords = [pf.at(s)[1] for s in nodes]
+    return float(np.trapezoid(chords, nodes))
+
+
+def _junction(
+    sl: SurfaceLayout, stations: tuple[BodyStation, ...], unit_upper, unit_lower, source: str
+) -> Junction:
+    ss = sl.sizing
+    pf = ss.planform
+    key = ss.key
+    line = _chord_line(_CHORD_SAMPLES)
+    s_line = _body_side(ss, stations, line, np.zeros(len(line)))
+    if np.all(np.isnan(s_line)):
+        raise InputError(
+            f"the root chord does not meet the fuselage (check {key}.apex against the "
+            f"fuselage's stations and sizes)",
+            source=source,
+            path=f"{key}.apex",
+        )
+    # where the chord runs past the body's nose or tail the surface is exposed to its root
+    s_line = np.where(np.isnan(s_line), 0.0, s_line)
+    side = "centre" if not pf.symmetric else "right"
+    side_x = np.array(
+        [place(ss, side, s, p[None, :])[0][0] for s, p in zip(s_line, line, strict=True)]
+    )
+    surface = np.vstack([unit_upper, unit_lower])
+    s_surface = _body_side(ss, stations, surface, np.full(len(surface), float(s_line.mean())))
+    overhang = bool(np.any(np.isnan(s_surface)))
+    mount = float(np.nanmin(s_surface)) - OVERLAP_FRACTION * pf.root_chord
+    if overhang:
+        # part of the root section lies outside the body (ahead of its nose, behind its tail
+        # or above it): the halves of a symmetric surface then join at the plane of symmetry,
+        # and a fin keeps its root
+        mount = 0.0 if pf.symmetric else min(mount, 0.0)
+    if pf.symmetric:
+        mount = max(mount, 0.0)
+    elif mount < -_MAX_EXTENSION * pf.root_chord:
+        raise InputError(
+            f"the fin's root lies {-s_line.max():.3f} m above the fuselage top; lower "
+            f"{key}.apex.z to the body",
+            source=source,
+            path=f"{key}.apex.z",
+        )
+    # the root section at the mount station must lie inside the body: then the junction closes
+    if not overhang and not fuselage_contains_section(ss, side, mount, surface, stations):
+        raise InputError(
+            "the root section does not fit inside the fuselage (the body is thinner than the "
+            "section where they meet)",
+            source=source,
+            path=f"{key}.apex",
+        )
+    exposed = _exposed_side_area(ss, side_x, s_line)
+    halves = 2.0 if pf.symmetric else 1.0
+    _check_controls_outboard(sl, stations, source)
+    return Junction(
+        key=key,
+        side_min=float(s_line.min()),
+        side_max=float(s_line.max()),
+        skin_min=float(np.nanmin(s_surface)),
+        mount_s=mount,
+        root_inside=not overhang,
+        reference_area=pf.area,
+        exposed_area=halves * exposed,
+        exposed_wetted_area=wetted_area(halves * exposed, ss.thickness_ratio),
+        side_line=tuple((float(x), float(s)) for x, s in zip(side_x, s_line, strict=True)),
+    )
+
+
+def fuselage_contains_section(
+    ss: SurfaceSizing, side: str, s: float, unit: np.ndarray, stations: tuple[BodyStation, ...]
+) -> bool:
+    """Whether the section of unit-chord points placed at station s lies inside the body."""
+    return bool(np.all(contains(stations, place(ss, side, s, unit))))
+
+
+def _check_controls_outboard(
+    sl: SurfaceLayout, stations: tuple[BodyStation, ...], source: str
+) -> None:
+    """A moving part must start outboard of the body side (plus its side gap) everywhere
+    along its chord, or it could not move."""
+    ss = sl.sizing
+    side = "centre" if not ss.planform.symmetric else "right"
+    for c in (c for c in sl.controls if c.side == side):
+        spec = next(x for x in ss.spec.controls if x.kind == c.kind)
+        f0 = c.hinge[0].chord_fraction
+        unit = np.column_stack([np.linspace(f0, 1.0, 9), np.zeros(9)])
+        s_side = _body_side(ss, stations, unit, np.full(9, c.s_start))
+        if np.all(np.isnan(s_side)):
+            continue  # the body ends ahead of the moving part
+        need = float(np.nanmax(s_side)) + spec.side_gap
+        if c.s_start < need - 1e-9:
+            raise InputError(
+                f"starts inside the fuselage: the body side is {np.nanmax(s_side):.3f} m from "
+                f"the root there, so start it at {need:.3f} m or more (got {c.s_start:.3f} m)",
+                source=source,
+                path=f"{ss.key}.controls.{c.kind}.span_start",
+            )
+
+
+def mount(layout: Layout, dirs: tuple = (), section_points: int = 61) -> Layout:
+    """The layout with its surfaces mounted on the fuselage (unchanged without one)."""
+    spec = layout.sizing.design.fuselage
+    if spec is None:
+        return layout
+    from .sections import unit_section
+
+    stations = fuselage.expand(spec)
+    source = layout.sizing.design.source
+    surfaces = []
+    for sl in layout.surfaces:
+        af = unit_section(sl.sizing, 0.0, section_points, 0.0, dirs)
+        j = _junction(sl, stations, af.upper, af.lower, source)
+        surfaces.append(dataclasses.replace(sl, junction=j))
+    return dataclasses.replace(layout, surfaces=tuple(surfaces), body=stations)
+
+
+def exposed_wetted_total(layout: Layout) -> float:
+    """Sum of the exposed wetted areas of the surfaces (m^2); NaN without a fuselage."""
+    js = [sl.junction for sl in layout.surfaces if sl.junction is not None]
+    return sum(j.exposed_wetted_area for j in js) if js else math.nan
