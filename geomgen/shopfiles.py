@@ -6,7 +6,9 @@ package is its fuselage station and butt line (or water line): the plan view has
 Y = y (right), seen from above; a wing or horizontal-tail planform has X = x, Y = y of the right
 half without incidence, twist or dihedral (spanwise positions projected, as everywhere in
 geomgen); the fin's planform has X = x, Y = z. Templates are drawn in each section's own plane
-(see :mod:`geomgen.templates`). ezdxf is imported inside the functions.
+(see :mod:`geomgen.templates`). A design with a fuselage adds its outline seen from above to the
+plan view (layer ``fuselage``) and its former templates to the template drawing. ezdxf is
+imported inside the functions.
 """
 
 from __future__ import annotations
@@ -17,10 +19,12 @@ from pathlib import Path
 
 import numpy as np
 
+from .design import BodyStation
 from .errors import GeometryError
+from .fuselage import expand, loft_sections
 from .layout import PART_NAMES, Layout, SurfaceLayout, corner_labels, place
 from .report import CAUTION, SURFACE_TITLES
-from .templates import SectionTemplate, section_templates
+from .templates import FormerTemplate, SectionTemplate, former_templates, section_templates
 
 #: Layers of the plan view and planform drawings: name -> (ACI colour, line type).
 LAYERS = {
@@ -41,8 +45,15 @@ TEMPLATE_STYLE = {
     "hinge": (1, "DASHED"),
     "spar": (5, "DASHDOT2"),
     "label": (7, "Continuous"),
+    "waterline": (8, "DASHDOT"),  # a former's centre water line
+    "centreline": (8, "CENTER"),  # a former's vertical centre line
+    "centre": (7, "Continuous"),  # the ring at a former's centre
 }
 TEMPLATE_LAYER_COLOURS = {"wing": 7, "horizontal_tail": 3, "vertical_tail": 5}
+#: ACI colour of the fuselage: its outline in the plan view and its former templates' layers.
+FUSELAGE_COLOUR = 30
+#: Plan-view outline of the fuselage: at least this many steps per station interval.
+BODY_OUTLINE_STEPS = 16
 M = 1000.0  # mm per m
 
 
@@ -153,8 +164,26 @@ def plan_outline(sl: SurfaceLayout) -> list[tuple[float, float]]:
     return [_xy(p) for p in loop]
 
 
+def body_plan_outline(stations: tuple[BodyStation, ...]) -> list[tuple[float, float]]:
+    """The fuselage seen from above (mm, X = x, Y = y) as one closed loop: nose to tail along
+    the right side, back along the left. Half widths are those of the body between the
+    stations (``fuselage.loft_sections``: the spline the solid is lofted along), at least
+    ``BODY_OUTLINE_STEPS`` per station interval; a pointed end is one point."""
+    sections = loft_sections(stations, 64, between=BODY_OUTLINE_STEPS - 1)
+    right = [(sec.x * M, float(sec.points[:, 1].max()) * M) for sec in sections]
+    loop = right + [(x, -y) for x, y in right[::-1]]
+    out: list[tuple[float, float]] = []
+    for p in loop:  # a point at either end would be there twice
+        if not out or math.dist(p, out[-1]) > 1e-9:
+            out.append(p)
+    if len(out) > 1 and math.dist(out[0], out[-1]) <= 1e-9:
+        out.pop()
+    return out
+
+
 def write_plan_dxf(layout: Layout, path: str | Path) -> Path:
-    """Plan view of the whole airplane (both sides; the fin as its plan projection), 1:1 mm."""
+    """Plan view of the whole airplane (both sides; the fin as its plan projection; the
+    fuselage's outline seen from above, if there is one, on layer ``fuselage``), 1:1 mm."""
     path = Path(path)
     wing = layout.sizing.wing
     span = wing.planform.span * M
@@ -162,6 +191,12 @@ def write_plan_dxf(layout: Layout, path: str | Path) -> Path:
     doc = _document(ltscale=h)
     msp = doc.modelspace()
     xs = []
+    body = layout.sizing.design.fuselage
+    if body is not None:
+        doc.layers.add("fuselage", color=FUSELAGE_COLOUR, linetype="Continuous")
+        outline = body_plan_outline(expand(body))
+        xs += [p[0] for p in outline]
+        _polyline(msp, outline, "fuselage", closed=True)
     for sl in layout.surfaces:
         ss = sl.sizing
         pf = ss.planform
@@ -352,11 +387,17 @@ def write_template_dxf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     """Section templates, 1:1 mm, each on its own layer named by surface and station (e.g.
     ``wing-y0600``): a column per surface, templates stacked root to tip without overlap. Each
     template's leading edge sits on whole 10 mm and its chord line on a whole 10 mm, so a
-    point's position on the template is read off by subtraction."""
+    point's position on the template is read off by subtraction.
+
+    With a fuselage, its former templates follow in a row to the right, each on its own layer
+    named by its fuselage station (e.g. ``former-x1300``): Y is the water line z itself and
+    X is y plus the former's centre-line X (a whole 10 mm)."""
     path = Path(path)
     templates = section_templates(layout, dirs)
+    formers = former_templates(layout)
     layers = {"labels": (7, "Continuous")}
     layers |= {t.name: (TEMPLATE_LAYER_COLOURS[t.surface], "Continuous") for t in templates}
+    layers |= {f.name: (FUSELAGE_COLOUR, "Continuous") for f in formers}
     doc = _document(ltscale=4.0, layers=layers)
     msp = doc.modelspace()
     gap = 40.0
@@ -383,15 +424,42 @@ def write_template_dxf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
         5.0,
         "labels",
     )
-    _caution(msp, (0.0, top + 3 * gap - 24.0), 3.5, max(x_column, 600.0))
+    caution_width = max(x_column, 600.0)
+    _caution(msp, (0.0, top + 3 * gap - 24.0), 3.5, caution_width)
+    if formers:
+        _draw_formers(msp, formers, caution_width + 3 * gap, gap)
     return _save(doc, path, "section templates")
+
+
+def _draw_formers(msp, formers: tuple[FormerTemplate, ...], x_start: float, gap: float) -> None:
+    """Former templates in a row from ``x_start`` (mm), each at its own water line (Y = z,
+    unshifted) with its centre line on a whole 10 mm, under a heading."""
+    x_cursor = x_start
+    top = -math.inf
+    for f in formers:
+        e = f.extent()
+        x_shift = _round_up(x_cursor - e[0])
+        _draw_template(msp, f, (x_shift, 0.0))
+        x_cursor = x_shift + e[2] + gap
+        top = max(top, e[3])
+    y = top + 2 * gap
+    _text(msp, "fuselage formers, 1:1 in mm, seen from aft", (x_start, y + 12.0), 8.0, "labels")
+    _text(
+        msp,
+        "each former on its own layer; Y = z (water line) of the aircraft frame, X = y plus the "
+        "X of the former's centre line (CL)",
+        (x_start, y),
+        5.0,
+        "labels",
+    )
 
 
 def _round_up(v: float, step: float = 10.0) -> float:
     return step * math.ceil(v / step)
 
 
-def _draw_template(msp, t: SectionTemplate, shift: tuple[float, float]) -> None:
+def _draw_template(msp, t: SectionTemplate | FormerTemplate, shift: tuple[float, float]) -> None:
+    """One template's strokes and notes on its own layer, moved by ``shift`` (mm)."""
     dx, dy = shift
     for stroke in t.strokes:
         colour, linetype = TEMPLATE_STYLE[stroke.kind]

@@ -9,6 +9,12 @@ through. Templates sit at the root, every panel break, the tip and every
 ``drawings.template_spacing`` from the root (spanwise positions are projected, as everywhere in
 geomgen).
 
+A design with a fuselage also gets a former (bulkhead) template at every fuselage station that
+is not a point (the stations as written, or those of the parametric form): the station's loop
+in its own plane, seen from aft, X = y (right) and Y = z (up) of the aircraft frame in mm, with
+a centre mark at (0, centre z), the centre water line and the vertical centre line for lining
+the formers up on a building jig.
+
 The geometry (strokes and notes in mm) is shared with ``shopfiles.write_template_dxf``; only
 :func:`write_template_pdf` imports matplotlib, and only when it is called.
 """
@@ -19,9 +25,12 @@ import math
 import textwrap
 from dataclasses import dataclass
 from pathlib import Path
+from typing import ClassVar
 
 import numpy as np
 
+from .design import BodyStation
+from .fuselage import Shares, body_shares, expand, is_point, section_points
 from .layout import PART_NAMES, Layout, SurfaceLayout
 from .report import CAUTION
 from .sections import unit_section
@@ -47,6 +56,13 @@ INNER_MARK_REACH = 4.0
 TEXT = 3.0
 SMALL_TEXT = 2.2
 
+#: Points on a former template's outline (the fuselage loop at the station).
+FORMER_POINTS = 256
+#: How far a former's water line and centre line stand beyond its outline (mm).
+FORMER_LINE_REACH = 10.0
+#: Radius of the ring marking a former's centre (mm).
+CENTRE_MARK_RADIUS = 3.0
+
 # Spanwise letter in template names: y from the plane of symmetry, h above the fin root.
 _AXIS = {"wing": "y", "horizontal_tail": "y", "vertical_tail": "h"}
 _SURFACE_WORDS = {"wing": "wing", "horizontal_tail": "horizontal tail", "vertical_tail": "fin"}
@@ -54,7 +70,8 @@ _SURFACE_WORDS = {"wing": "wing", "horizontal_tail": "horizontal tail", "vertica
 
 @dataclass(frozen=True)
 class Stroke:
-    """A polyline of a drawing (mm). ``kind``: outline, chord, edge, hinge, spar, cross."""
+    """A polyline of a drawing (mm). ``kind``: outline, chord, edge, hinge, spar (sections);
+    outline, waterline, centreline, centre (formers)."""
 
     kind: str
     points: tuple[tuple[float, float], ...]
@@ -66,7 +83,7 @@ class Note:
     """A line of text: ``at`` is the left end (align left) or the middle (align centre) of its
     baseline, ``height`` the letter height (mm)."""
 
-    kind: str  # label, edge, hinge, spar, cross
+    kind: str  # label, edge, hinge, spar, cross, waterline, centreline
     text: str
     at: tuple[float, float]
     height: float = TEXT
@@ -102,6 +119,8 @@ class SectionTemplate:
     lower: np.ndarray  # (N, 2) mm, LE -> TE
     strokes: tuple[Stroke, ...]
     notes: tuple[Note, ...]
+    #: what the drawing's x and y measure (alignment-cross labels)
+    axes: ClassVar[tuple[str, str]] = ("x", "y")
 
     def surfaces_at(self, x: float) -> tuple[float, float]:
         """(lower, upper) y of the section at chord position x (mm); the chord line's y twice
@@ -116,23 +135,89 @@ class SectionTemplate:
     def extent(self, labels: bool = True, pad: float = 0.0) -> tuple[float, float, float, float]:
         """(x0, y0, x1, y1) of everything drawn, text included (mm), grown by ``pad``; without
         the label lines if ``labels`` is False."""
-        pts = np.concatenate([np.asarray(s.points) for s in self.strokes])
-        boxes = np.array([n.box() for n in self.notes if labels or n.kind != "label"])
+        return _extent(self.strokes, self.notes, labels, pad)
+
+    def page_lines(self) -> tuple[str, str, str]:
+        """A PDF page's heading (before the tile count) and its two lines of detail."""
+        where = self.label[0].split(": ", 1)[1]
         return (
-            float(min(pts[:, 0].min(), boxes[:, 0].min())) - pad,
-            float(min(pts[:, 1].min(), boxes[:, 1].min())) - pad,
-            float(max(pts[:, 0].max(), boxes[:, 2].max())) + pad,
-            float(max(pts[:, 1].max(), boxes[:, 3].max())) + pad,
+            f"{self.name}   chord {self.chord * 1000:.1f} mm",
+            f"{where}; section {self.section}",
+            self.label[2],
+        )
+
+
+def _extent(strokes, notes, labels: bool, pad: float) -> tuple[float, float, float, float]:
+    """(x0, y0, x1, y1) of strokes and notes (mm), grown by ``pad``; the label notes only if
+    ``labels``."""
+    pts = np.concatenate([np.asarray(s.points) for s in strokes])
+    boxes = np.array([n.box() for n in notes if labels or n.kind != "label"])
+    return (
+        float(min(pts[:, 0].min(), boxes[:, 0].min())) - pad,
+        float(min(pts[:, 1].min(), boxes[:, 1].min())) - pad,
+        float(max(pts[:, 0].max(), boxes[:, 2].max())) + pad,
+        float(max(pts[:, 1].max(), boxes[:, 3].max())) + pad,
+    )
+
+
+@dataclass(frozen=True, eq=False)
+class FormerTemplate:
+    """One fuselage former (bulkhead) template in its station's plane, seen from aft, 1:1:
+    X = y (right), Y = z (up) of the aircraft frame, mm; the centre is at (0, station z)."""
+
+    name: str  # e.g. former-x1300 (DXF layer name, page label)
+    station: BodyStation  # m
+    label: tuple[str, ...]  # lines naming the template (also drawn as the "label" notes)
+    outline: np.ndarray  # (FORMER_POINTS, 2) mm, closed loop, first point not repeated
+    strokes: tuple[Stroke, ...]
+    notes: tuple[Note, ...]
+    axes: ClassVar[tuple[str, str]] = ("y", "z")
+
+    @property
+    def centre(self) -> tuple[float, float]:
+        """(y, z) of the section centre (mm)."""
+        return (0.0, self.station.z * 1000.0)
+
+    def surfaces_at(self, x: float) -> tuple[float, float]:
+        """(lower, upper) Y of the outline at X = x (mm); the centre's Y twice outside it."""
+        p = self.outline
+        q = np.roll(p, -1, axis=0)
+        lo, hi = np.minimum(p[:, 0], q[:, 0]), np.maximum(p[:, 0], q[:, 0])
+        hit = (lo <= x) & (x <= hi) & (hi > lo)
+        if not hit.any():
+            return (self.centre[1], self.centre[1])
+        t = (x - p[hit, 0]) / (q[hit, 0] - p[hit, 0])
+        y = p[hit, 1] + t * (q[hit, 1] - p[hit, 1])
+        return (float(y.min()), float(y.max()))
+
+    def extent(self, labels: bool = True, pad: float = 0.0) -> tuple[float, float, float, float]:
+        """(x0, y0, x1, y1) of everything drawn, text included (mm), grown by ``pad``; without
+        the label lines if ``labels`` is False."""
+        return _extent(self.strokes, self.notes, labels, pad)
+
+    def page_lines(self) -> tuple[str, str, str]:
+        """A PDF page's heading (before the tile count) and its two lines of detail."""
+        st = self.station
+        where = self.label[0].split(": ", 1)[1]
+        return (
+            f"{self.name}   {st.width * 1000:.1f} mm wide x {st.height * 1000:.1f} mm high",
+            f"{where}; {_shape_words(st)}; centre z = {self.centre[1]:.1f} mm",
+            self.label[2],
         )
 
 
 # --- where the templates go -------------------------------------------------------------------
 
 
-def template_positions(ss: SurfaceSizing, spacing: float | None) -> tuple[float, ...]:
-    """Spanwise positions (m) of the templates of one surface: root, panel breaks, tip, and
-    every ``spacing`` from the root. A spaced position within 1 mm of a station is dropped."""
+def template_positions(
+    ss: SurfaceSizing, spacing: float | None, body_side: float | None = None
+) -> tuple[float, ...]:
+    """Spanwise positions (m) of the templates of one surface: root, panel breaks, tip, the
+    body side (the first rib wholly outside the fuselage, when the surface is mounted on one)
+    and every ``spacing`` from the root. A spaced position within 1 mm of another is dropped."""
     stations = [st.s for st in ss.planform.stations]
+    if body_side is not None and all(abs(body_side - t) >= 1e-3 for t in stations):
+        stations.append(body_side)
     extra = []
     if spacing:
         tip = stations[-1]
@@ -163,11 +248,13 @@ def hinge_fraction(sl: SurfaceLayout, control, s: float) -> float:
     return (float(np.interp(s, ss, xs)) - x_le) / chord
 
 
-def _where(ss: SurfaceSizing, s: float) -> str:
-    stations = ss.planform.stations
+def _where(sl: SurfaceLayout, s: float) -> str:
+    stations = sl.sizing.planform.stations
     for i, st in enumerate(stations):
         if abs(st.s - s) < 1e-9:
             return "root" if i == 0 else "tip" if i == len(stations) - 1 else f"break {i}"
+    if sl.junction is not None and abs(s - sl.junction.side_max) < 1e-9:
+        return "fuselage side"
     return "between stations"
 
 
@@ -257,7 +344,7 @@ def section_template(
         turn = "LE to starboard"
     angle = ss.spec.incidence + twist
     lines = [
-        f"{name}: {word}, {_where(ss, s)}, {place}",
+        f"{name}: {word}, {_where(layout.surface(key), s)}, {place}",
         f"chord {c:.1f} mm; section {_section_mix(ss, s)}",
         f"chord line at {math.degrees(angle):+.2f} deg to the x axis ({turn}); drawn 1:1 in mm",
     ]
@@ -288,8 +375,137 @@ def section_templates(layout: Layout, dirs: tuple = ()) -> tuple[SectionTemplate
     return tuple(
         section_template(layout, sl.key, s, dirs)
         for sl in layout.surfaces
-        for s in template_positions(sl.sizing, spacing)
+        for s in template_positions(
+            sl.sizing, spacing, sl.junction.side_max if sl.junction is not None else None
+        )
     )
+
+
+# --- fuselage formers ----------------------------------------------------------------------------
+
+
+def former_name(st: BodyStation) -> str:
+    """Former template (and DXF layer) name: the fuselage station x in whole mm."""
+    return f"former-x{round(st.x * 1000):04d}"
+
+
+def _shape_words(st: BodyStation) -> str:
+    if st.shape == "superellipse":
+        return f"superellipse, exponent {st.exponent:g}"
+    if st.shape == "rounded_rectangle":
+        return f"rounded rectangle, corner radius {st.corner_radius * 1000:.1f} mm"
+    return "ellipse"
+
+
+def former_template(
+    st: BodyStation, where: str, shares: Shares | None = None, name: str | None = None
+) -> FormerTemplate:
+    """The former template of one fuselage station (not a point): its loop of
+    ``FORMER_POINTS`` points (``shares``: those of the body, see ``fuselage.body_shares``) in
+    the station's plane, X = y, Y = z of the aircraft frame (mm), with the centre water line,
+    the vertical centre line, a ring at the centre and the label lines below. ``where`` names
+    the station among the body's (e.g. "station 3 of 9 from the nose")."""
+    loop = section_points(st, FORMER_POINTS, shares)[:, 1:] * 1000.0  # (y, z) mm
+    zc = st.z * 1000.0
+    a = float(np.abs(loop[:, 0]).max())
+    top, bottom = float(loop[:, 1].max()), float(loop[:, 1].min())
+    reach = FORMER_LINE_REACH
+    ring = [
+        (CENTRE_MARK_RADIUS * math.cos(t), zc + CENTRE_MARK_RADIUS * math.sin(t))
+        for t in np.linspace(0.0, 2.0 * math.pi, 25)[:-1]
+    ]
+    strokes = (
+        Stroke("outline", tuple(map(tuple, loop.tolist())), closed=True),
+        Stroke("waterline", ((-a - reach, zc), (a + reach, zc))),
+        Stroke("centreline", ((0.0, bottom - reach), (0.0, top + reach))),
+        Stroke("centre", tuple(ring), closed=True),
+    )
+    name = name or former_name(st)
+    w, h = st.width * 1000.0, st.height * 1000.0
+    lines = (
+        f"{name}: fuselage former at x = {st.x * 1000:.1f} mm, {where}",
+        f"{w:.1f} mm wide x {h:.1f} mm high, {_shape_words(st)}; centre on the water line "
+        f"z = {zc:.1f} mm",
+        "seen from aft: X = y (right), Y = z (up) of the aircraft frame; drawn 1:1 in mm",
+    )
+    notes = [
+        Note("centreline", "CL", (1.0, top + reach + 1.0)),
+        Note("waterline", f"WL {zc:.1f}", (a + reach + 1.0, zc + 1.0)),
+    ]
+    y = bottom - reach - 3.0 - TEXT
+    for line in lines:
+        notes.append(Note("label", line, (-a - reach, y)))
+        y -= 1.6 * TEXT
+    return FormerTemplate(name, st, lines, loop, strokes, tuple(notes))
+
+
+#: formers closer than this fraction of the body length to the one kept before are left out
+#: (the parametric form adds stations a few centimetres either side of its joins to steady
+#: the spline; a builder needs no former there)
+FORMER_MIN_SPACING = 0.02
+#: sections within this size (m) of the former kept before are the same former
+FORMER_SAME_SIZE = 5e-4
+
+
+def former_stations(stations) -> list[tuple[int, BodyStation, list[float]]]:
+    """The stations that get a former: (1-based index, station, x of later stations with the
+    same section). Points get none; a station with the same section as the former kept before
+    is listed on it instead of drawn again; one closer than FORMER_MIN_SPACING of the body
+    length to the former kept before is left out, unless it is the last one."""
+    length = stations[-1].x - stations[0].x
+    solid = [(i, st) for i, st in enumerate(stations, start=1) if not is_point(st)]
+    kept: list[tuple[int, BodyStation, list[float]]] = []
+    for k, (i, st) in enumerate(solid):
+        if kept:
+            _, prev, same = kept[-1]
+            if _same_section(prev, st):
+                same.append(st.x)
+                continue
+            last = k == len(solid) - 1
+            if not last and st.x - max([prev.x, *same]) < FORMER_MIN_SPACING * length:
+                continue
+        kept.append((i, st, []))
+    return kept
+
+
+def _same_section(a: BodyStation, b: BodyStation) -> bool:
+    return (
+        a.shape == b.shape
+        and a.exponent == b.exponent
+        and all(
+            abs(u - v) <= FORMER_SAME_SIZE
+            for u, v in (
+                (a.width, b.width),
+                (a.height, b.height),
+                (a.z, b.z),
+                (a.corner_radius, b.corner_radius),
+            )
+        )
+    )
+
+
+def former_templates(layout: Layout) -> tuple[FormerTemplate, ...]:
+    """Former templates along the fuselage, nose to tail (see ``former_stations``); none
+    without a fuselage. Stations within 1 mm of each other get names told apart by a suffix."""
+    spec = layout.sizing.design.fuselage
+    if spec is None:
+        return ()
+    stations = expand(spec)
+    shares = body_shares(stations)
+    out: list[FormerTemplate] = []
+    used: set[str] = set()
+    for i, st, same in former_stations(stations):
+        name = base = former_name(st)
+        k = 1
+        while name in used:
+            k += 1
+            name = f"{base}-{k}"
+        used.add(name)
+        where = f"station {i} of {len(stations)} from the nose"
+        if same:
+            where += "; same former at x " + ", ".join(f"{x * 1000:.0f}" for x in same) + " mm"
+        out.append(former_template(st, where, shares, name))
+    return tuple(out)
 
 
 # --- tiling -------------------------------------------------------------------------------------
@@ -354,11 +570,14 @@ class Cross:
     label_above: bool
 
 
-def alignment_crosses(t: SectionTemplate, page_tiles: list[Tile], overlap: float) -> list[Cross]:
+def alignment_crosses(
+    t: SectionTemplate | FormerTemplate, page_tiles: list[Tile], overlap: float
+) -> list[Cross]:
     """Two crosses in the middle of every overlap between neighbouring tiles, so each shows on
-    both pages: beside the section's surfaces at a joint between columns (clear of the
-    outline where the tile allows), at a quarter and three quarters of the tile's width at a
-    joint between rows."""
+    both pages: beside the section's surfaces (a former's outline) at a joint between columns
+    (clear of the outline where the tile allows), at a quarter and three quarters of the tile's
+    width at a joint between rows. Labels name the template's axes (x, y of a section; y, z of
+    a former) and the position in mm."""
     edge = 7.0  # keep a cross and its label this far inside the tile
     out: list[Cross] = []
     columns = sorted({tile.x0 for tile in page_tiles})
@@ -373,11 +592,11 @@ def alignment_crosses(t: SectionTemplate, page_tiles: list[Tile], overlap: float
             if ys[-1] - ys[0] < 20.0:
                 ys = [lo, hi]
             mid = 0.5 * (yl + yu)
-            out += [Cross(xm, y, f"x {xm:.1f}", y > mid) for y in ys]
+            out += [Cross(xm, y, f"{t.axes[0]} {xm:.1f}", y > mid) for y in ys]
     for y_below in rows[:-1]:
         ym = y_below + h - 0.5 * overlap
         for x0 in columns:
-            out += [Cross(x0 + f * w, ym, f"y {ym:.1f}", True) for f in (0.25, 0.75)]
+            out += [Cross(x0 + f * w, ym, f"{t.axes[1]} {ym:.1f}", True) for f in (0.25, 0.75)]
     return out
 
 
@@ -442,14 +661,24 @@ _WIDTHS_PT = {
     "cross": 0.4,
     "bar": 0.6,
     "tick": 0.4,
+    "waterline": 0.35,
+    "centreline": 0.35,
+    "centre": 0.4,
 }
-_STYLES = {"chord": (0, (6, 2, 1, 2)), "hinge": (0, (4, 2)), "spar": (0, (1.5, 1.5))}
+_STYLES = {
+    "chord": (0, (6, 2, 1, 2)),
+    "hinge": (0, (4, 2)),
+    "spar": (0, (1.5, 1.5)),
+    "waterline": (0, (6, 2, 1, 2)),
+    "centreline": (0, (10, 2, 2, 2)),
+}
 _COLOURS = {"hinge": "#c00000", "spar": "#0040c0"}
 _CROSS = 5.0  # half-length of an alignment cross's arms (mm)
 
 
 def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Path:
-    """Every section template at true scale on the design's paper (A4 or Letter, portrait).
+    """Every section template, then every fuselage former template (if the design has a
+    fuselage), at true scale on the design's paper (A4 or Letter, portrait).
 
     A template larger than a page's drawing area is tiled over several pages that overlap by
     ``OVERLAP``; crosses in each overlap, labelled with their drawing position, show on both
@@ -464,7 +693,8 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     width, height = PAPER_MM[paper]
     region = (MARGIN, MARGIN + FOOTER, width - MARGIN, height - MARGIN - HEADER)
     rw, rh = region[2] - region[0], region[3] - region[1]
-    templates = section_templates(layout, dirs)
+    formers = former_templates(layout)
+    templates = (*section_templates(layout, dirs), *formers)
     plans = []
     for t in templates:
         ext = t.extent(labels=False, pad=4.0)  # the page label names the template
@@ -479,7 +709,8 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
         "lines.dash_capstyle": "butt",
     }
     metadata = {
-        "Title": f"{design.title}: section templates (1:1)",
+        "Title": f"{design.title}: {'section and former' if formers else 'section'} templates"
+        " (1:1)",
         "Creator": "geomgen",
         "CreationDate": None,
     }
@@ -585,19 +816,18 @@ class _Sheet:
 
         # page label
         top = height - MARGIN
-        head = f"{t.name}   chord {t.chord * 1000:.1f} mm   tile {k} of {n}"
-        self.text(MARGIN, top - 3.5, head, 3.5)
+        head, detail, frame = t.page_lines()
+        self.text(MARGIN, top - 3.5, f"{head}   tile {k} of {n}", 3.5)
         self.text(width - MARGIN, top - 3.5, f"sheet {number} of {sheets}", 2.4, "right")
-        where = t.label[0].split(": ", 1)[1]
-        self.text(MARGIN, top - 8.0, f"{where}; section {t.section}", 2.2)
-        self.text(MARGIN, top - 11.7, f"{t.label[2]}; {self.title}", 2.2)
+        self.text(MARGIN, top - 8.0, detail, 2.2)
+        self.text(MARGIN, top - 11.7, f"{frame}; {self.title}", 2.2)
         if n > 1:
             self.text(
                 MARGIN,
                 top - 15.4,
                 f"column {tile.column + 1} of {tile.columns}, row "
                 f"{tile.row + 1} of {tile.rows}: overlap the neighbouring tiles so that "
-                "crosses of equal x or y coincide",
+                f"crosses of equal {t.axes[0]} or {t.axes[1]} coincide",
                 2.2,
             )
 

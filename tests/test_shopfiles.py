@@ -1,10 +1,13 @@
 """DXF shop drawings read back with ezdxf: units, audit, layers, and areas and positions
-measured on the drawn entities against report.json, the design file and plane geometry."""
+measured on the drawn entities against report.json, the design file and plane geometry; the
+fuselage in the plan view and its former templates against the closed forms of the design
+file's body."""
 
 from __future__ import annotations
 
 import json
 import math
+import re
 from itertools import combinations
 
 import ezdxf
@@ -14,12 +17,55 @@ from designs import DEMO, demo_document, make_design
 from ezdxf import bbox
 
 from geomgen import shopfiles
+from geomgen.fuselage import expand
 from geomgen.layout import lay_out
 from geomgen.pipeline import airfoil_dirs, run_size
 from geomgen.sizing import size
 
 PLAN_LAYERS = {"outline", "hinge-line", "mgc", "dimensions", "labels"}
 SURFACE_WORDS = {"wing", "stabilizer", "fin"}
+
+#: A parametric fuselage of our own (design file keys, invented figures): an elliptic body
+#: whose nose tip stands 200 mm ahead of the origin of x.
+BODY = {
+    "nose_x": "-0.2 m",
+    "length": "5.8 m",
+    "max_width": "0.8 m",
+    "max_height": "1.0 m",
+    "nose_length": "1.2 m",
+    "tail_cone_length": "3.0 m",
+    "tail_end_radius": "0.08 m",
+    "centre_z": "0.55 m",
+    "shape": "ellipse",
+}
+#: Tail-cone radii for a design drawn without a fuselage (the optimum tail arm needs them).
+TAIL_CONE = {"front_radius": "0.45 m", "rear_radius": "0.1 m"}
+
+
+def with_body(doc: dict, body: dict | None) -> dict:
+    """The design document with this fuselage, or with none and a tail cone instead."""
+    doc.pop("fuselage", None)
+    doc.pop("tail_cone", None)
+    if body is None:
+        doc["tail_cone"] = dict(TAIL_CONE)
+    else:
+        doc["fuselage"] = body
+    return doc
+
+
+def body_half_sizes(x_mm: float) -> tuple[float, float]:
+    """Half width and half height (mm) of BODY at station x, from the parametric form as the
+    design file defines it: a half-ellipse profile over the nose (a0 sqrt(1 - u^2), u = 1 at
+    the tip), the largest section, then straight down to the tail-end radius."""
+    a0, b0, end = 400.0, 500.0, 80.0
+    v = x_mm + 200.0  # from the nose tip
+    if v >= 5800.0 - 3000.0:
+        t = (v - 2800.0) / 3000.0
+        return a0 + (end - a0) * t, b0 + (end - b0) * t
+    if v < 1200.0:
+        f = math.sqrt(max(0.0, 1.0 - (1.0 - v / 1200.0) ** 2))
+        return a0 * f, b0 * f
+    return a0, b0
 
 
 def shoelace(points) -> float:
@@ -53,6 +99,30 @@ def drawn(tmp_path_factory):
         "plan": ezdxf.readfile(plan),
         "planforms": {p.name: ezdxf.readfile(p) for p in planforms},
         "templates": ezdxf.readfile(tpl),
+    }
+
+
+@pytest.fixture(scope="module")
+def bodied(tmp_path_factory):
+    """The demo with BODY: its plan view and template DXF, and the design."""
+    out = tmp_path_factory.mktemp("body")
+    design = make_design(with_body(demo_document(), BODY))
+    layout = lay_out(size(design))
+    return {
+        "design": design,
+        "plan": ezdxf.readfile(shopfiles.write_plan_dxf(layout, out / "plan.dxf")),
+        "templates": ezdxf.readfile(shopfiles.write_template_dxf(layout, out / "t.dxf")),
+    }
+
+
+@pytest.fixture(scope="module")
+def bare(tmp_path_factory):
+    """The demo without a fuselage: its plan view and template DXF."""
+    out = tmp_path_factory.mktemp("bare")
+    layout = lay_out(size(make_design(with_body(demo_document(), None))))
+    return {
+        "plan": ezdxf.readfile(shopfiles.write_plan_dxf(layout, out / "plan.dxf")),
+        "templates": ezdxf.readfile(shopfiles.write_template_dxf(layout, out / "t.dxf")),
     }
 
 
@@ -235,24 +305,145 @@ def test_template_hinge_and_spar_marks(drawn):
     xs = []
     for s_mm in (0, 600, 1200):
         lines, texts, _ = template_entities(doc, f"stabilizer-y{s_mm:04d}")
+        if not [t for t in texts if t.startswith("hinge")]:
+            continue  # the elevator may start outboard of the root
         le = mark_near(lines, texts["LE"])
         hinge = mark_near(lines, text_starting(texts, "hinge"))
         t = s_mm / 1000 / tip["span_position"]["value"]
         x_le = (1 - t) * root["leading_edge_x"]["value"] + t * tip["leading_edge_x"]["value"]
         xs.append(x_le * 1000 + hinge - le)
+    assert len(xs) >= 2
     assert np.ptp(xs) == pytest.approx(0.0, abs=0.01)
 
 
-def test_templates_do_not_overlap(drawn):
-    doc = drawn["templates"]
-    names = [n.dxf.name for n in doc.layers if n.dxf.name.split("-")[0] in SURFACE_WORDS]
-    boxes = {n: bbox.extents(doc.modelspace().query(f'*[layer=="{n}"]'), fast=True) for n in names}
+def _apart(ba, bb) -> bool:
+    return (
+        ba.extmax.x < bb.extmin.x
+        or bb.extmax.x < ba.extmin.x
+        or ba.extmax.y < bb.extmin.y
+        or bb.extmax.y < ba.extmin.y
+    )
+
+
+@pytest.mark.parametrize("which", ["drawn", "bodied"])
+def test_templates_do_not_overlap(which, request):
+    """Section and former templates stand apart, and clear of every title and caution line."""
+    doc = request.getfixturevalue(which)["templates"]
+    msp = doc.modelspace()
+    words = SURFACE_WORDS | {"former"}
+    names = [n.dxf.name for n in doc.layers if n.dxf.name.split("-")[0] in words]
+    if which == "bodied":
+        assert [n for n in names if n.startswith("former-")]
+    boxes = {n: bbox.extents(msp.query(f'*[layer=="{n}"]'), fast=True) for n in names}
     for a, b in combinations(names, 2):
-        ba, bb = boxes[a], boxes[b]
-        apart = (
-            ba.extmax.x < bb.extmin.x
-            or bb.extmax.x < ba.extmin.x
-            or ba.extmax.y < bb.extmin.y
-            or bb.extmax.y < ba.extmin.y
-        )
-        assert apart, (a, b)
+        assert _apart(boxes[a], boxes[b]), (a, b)
+    texts = msp.query('TEXT[layer=="labels"]')
+    assert len(texts) > 3
+    for text in texts:
+        box = bbox.extents([text], fast=True)
+        for name in names:
+            assert _apart(box, boxes[name]), (text.dxf.text, name)
+
+
+# --- fuselage ------------------------------------------------------------------------------------
+
+
+def test_fuselage_drawings_are_in_millimetres_and_pass_the_audit(bodied, bare):
+    for doc in (bodied["plan"], bodied["templates"], bare["plan"], bare["templates"]):
+        # DXF reference, header variable $INSUNITS: 4 = millimetres
+        assert doc.header["$INSUNITS"] == 4
+        auditor = doc.audit()
+        assert not auditor.has_errors, [e.message for e in auditor.errors]
+
+
+def test_plan_view_draws_the_fuselage_seen_from_above(bodied):
+    doc = bodied["plan"]
+    assert "fuselage" in {layer.dxf.name for layer in doc.layers}
+    (outline,) = closed_outlines(doc, "fuselage")
+    x, y = outline[:, 0], outline[:, 1]
+    # nose tip at nose_x, tail end a length further aft (design file: -0.2 m, 5.8 m)
+    assert (x.min(), x.max()) == pytest.approx((-200.0, 5600.0), abs=1e-6)
+    # both sides: mirror images about the plane of symmetry
+    assert np.sort(y) == pytest.approx(np.sort(-y), abs=1e-6)
+    # as wide as max_width; the spline between the stations bulges by less than 0.3 %
+    assert 400.0 - 1e-6 <= y.max() <= 400.0 * 1.003
+    # the tail end: 2 x tail_end_radius wide (design file)
+    assert np.ptp(y[np.isclose(x, 5600.0)]) == pytest.approx(160.0, abs=1e-6)
+    # plan area from the design file's profile by plane geometry: a half ellipse of semi-axes
+    # nose_length and max_width / 2 (pi a b / 2), the rectangle of the largest section, the
+    # trapezoid of the tail cone. The drawn half widths follow the spline the solid is lofted
+    # along, which leaves the exact nose profile most near the tip (vertical tangent there):
+    # 0.04 % in area measured.
+    a0, nose, cone, end = 400.0, 1200.0, 3000.0, 80.0
+    area = math.pi * a0 * nose / 2 + 2 * a0 * (5800.0 - nose - cone) + (a0 + end) * cone
+    assert shoelace(outline) == pytest.approx(area, rel=1e-3)
+
+
+SIZE = r"(\d+\.\d) mm wide x (\d+\.\d) mm high"
+
+
+def test_former_templates_are_the_body_sections(bodied):
+    doc = bodied["templates"]
+    msp = doc.modelspace()
+    formers = sorted(n.dxf.name for n in doc.layers if n.dxf.name.startswith("former-"))
+    # a former at the stations a builder needs: every station that is not a point has one,
+    # or lies within 2 % of the body length of one, or has the same section as the one
+    # before (then listed on it); formers stand at least 2 % of the length apart, but for the
+    # last (common practice: no former a few centimetres from another)
+    stations = expand(bodied["design"].fuselage)
+    length_mm = 1000 * (stations[-1].x - stations[0].x)
+    former_x = sorted(int(n.removeprefix("former-x")) for n in formers)
+    listed = [
+        float(v)
+        for e in msp.query("TEXT")
+        if "same former at x" in e.dxf.text
+        for v in re.findall(r"\d+", e.dxf.text.split("same former at x", 1)[1])
+    ]
+    assert len(formers) > 5 and listed
+    for st in stations[1:]:
+        x = 1000 * st.x
+        assert min(abs(x - f) for f in former_x + listed) <= 0.02 * length_mm + 0.5, x
+    pairs = zip(former_x[:-2], former_x[1:-1], strict=True)
+    assert all(b - a >= 0.02 * length_mm - 1 for a, b in pairs)
+    for name in formers:
+        outline, ring = sorted(closed_outlines(doc, name), key=shoelace, reverse=True)
+        texts = [e.dxf.text for e in msp.query(f'TEXT[layer=="{name}"]')]
+        (x_mm,) = [float(m[1]) for t in texts if (m := re.search(r"at x = (-?\d+\.\d) mm", t))]
+        assert abs(int(name.removeprefix("former-x")) - x_mm) <= 0.55  # named in whole mm
+        a, b = body_half_sizes(x_mm)
+        width, height = np.ptp(outline[:, 0]), np.ptp(outline[:, 1])
+        # x in the label is rounded to 0.1 mm; the nose grows by at most 1.3 mm per mm there
+        assert (width, height) == pytest.approx((2 * a, 2 * b), abs=0.15)
+        # ... and as the label gives them
+        (size_text,) = [m.groups() for t in texts if (m := re.search(SIZE, t))]
+        assert tuple(map(float, size_text)) == pytest.approx((2 * a, 2 * b), abs=0.15)
+        # an ellipse encloses pi a b (Archimedes); the 256-point polygon inscribed in it (an
+        # affine image of a regular 256-gon, area 128 sin(2 pi / 256) a b) falls 1.0e-4 short
+        assert shoelace(outline) == pytest.approx(math.pi * width * height / 4, rel=2e-4)
+        assert shoelace(outline) < math.pi * width * height / 4
+        # the centre mark: at the outline's middle (an ellipse is symmetric about its centre)
+        # and on the centre water line, centre_z = 0.55 m (design file)
+        centre = ring.mean(axis=0)
+        middle = 0.5 * (outline.min(axis=0) + outline.max(axis=0))
+        assert centre == pytest.approx(middle, abs=1e-6)
+        assert centre[1] == pytest.approx(550.0, abs=1e-6)
+        # the centre line is vertical through the mark on a whole 10 mm, the water line
+        # horizontal through it; both reach past the outline
+        lines = [(e.dxf.start.vec2, e.dxf.end.vec2) for e in msp.query(f'LINE[layer=="{name}"]')]
+        (cl,) = [(p, q) for p, q in lines if abs(p.x - q.x) < 1e-9]
+        (wl,) = [(p, q) for p, q in lines if abs(p.y - q.y) < 1e-9]
+        assert cl[0].x == pytest.approx(centre[0], abs=1e-9)
+        assert cl[0].x / 10 == pytest.approx(round(cl[0].x / 10), abs=1e-9)
+        assert min(cl[0].y, cl[1].y) < outline[:, 1].min()
+        assert max(cl[0].y, cl[1].y) > outline[:, 1].max()
+        assert wl[0].y == pytest.approx(550.0, abs=1e-9)
+        assert min(wl[0].x, wl[1].x) < outline[:, 0].min()
+        assert max(wl[0].x, wl[1].x) > outline[:, 0].max()
+
+
+def test_no_fuselage_draws_no_fuselage(bare):
+    plan, tpl = bare["plan"], bare["templates"]
+    assert "fuselage" not in {layer.dxf.name for layer in plan.layers}
+    assert not plan.modelspace().query('*[layer=="fuselage"]')
+    assert not [n for n in tpl.layers if n.dxf.name.startswith("former")]
+    assert not [e for e in tpl.modelspace().query("TEXT") if "former" in e.dxf.text]

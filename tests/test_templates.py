@@ -1,6 +1,7 @@
 """Section templates as a PDF at true scale, measured in the PDF's own units (points): page
 size, the 100 mm check bar, the chord between the leading- and trailing-edge marks, and the
-tiling of a section larger than a page."""
+tiling of a section larger than a page; fuselage former templates: their size, centre mark,
+centre lines and tiling."""
 
 from __future__ import annotations
 
@@ -147,15 +148,49 @@ def template_pages(pages: list[Page], name: str) -> list[Page]:
 
 # --- fixtures ------------------------------------------------------------------------------------
 
+#: Tail-cone radii for a design drawn without a fuselage (the optimum tail arm needs them).
+TAIL_CONE = {"front_radius": "0.45 m", "rear_radius": "0.1 m"}
+#: A model-size fuselage of our own (design file keys, invented figures): a pointed nose, an
+#: elliptic former that fits on a page, a wider super-elliptic one that does not, a pointed tail.
+MODEL_BODY = {
+    "stations": [
+        {"x": "-50 mm", "width": "0 m", "height": "0 m", "z": "20 mm"},
+        {"x": "100 mm", "width": "120 mm", "height": "160 mm", "z": "20 mm"},
+        {
+            "x": "300 mm",
+            "width": "300 mm",
+            "height": "180 mm",
+            "z": "20 mm",
+            "shape": "superellipse",
+            "exponent": 3,
+        },
+        {"x": "900 mm", "width": "0 m", "height": "0 m", "z": "20 mm"},
+    ]
+}
 
-def small_layout(paper: str = "A4"):
-    """A model-size airplane whose every section fits on one page."""
+
+def with_body(doc: dict, body: dict | None) -> dict:
+    """The design document with this fuselage, or with none and a tail cone instead."""
+    doc.pop("fuselage", None)
+    doc.pop("tail_cone", None)
+    if body is None:
+        doc["tail_cone"] = dict(TAIL_CONE)
+    else:
+        doc["fuselage"] = body
+    return doc
+
+
+def small_layout(paper: str = "A4", body: dict | None = None):
+    """A model-size airplane whose every section fits on one page, with this fuselage."""
     doc = trapezoid_document(area="0.12 m^2", aspect_ratio=6.0, taper_ratio=0.8)
     doc["wing"]["controls"].pop("flap")
     for key in ("horizontal_tail", "vertical_tail"):
         doc[key]["tail_arm"] = "0.6 m"
+    # the controls as fractions of the small tails' spans
+    doc["horizontal_tail"]["controls"]["elevator"]["span_start"] = 0.0
+    doc["vertical_tail"]["controls"]["rudder"]["span_start"] = 0.04
     doc["drawings"] = {"paper": paper}
-    return lay_out(size(make_design(doc)))
+    return lay_out(size(make_design(with_body(doc, body))))
 
 
 @pytest.fixture(scope="module")
@@ -166,9 +201,18 @@ def small(tmp_path_factory):
 
 
 @pytest.fixture(scope="module")
+def bodied(tmp_path_factory):
+    """The small airplane with MODEL_BODY: its sections and two formers."""
+    layout = small_layout(body=MODEL_BODY)
+    path = templates.write_template_pdf(layout, tmp_path_factory.mktemp("body") / "t.pdf")
+    return layout, read_pages(path)
+
+
+@pytest.fixture(scope="module")
 def demo(tmp_path_factory):
-    """The demo without extra spaced templates: root, break and tip sections, most tiled."""
-    doc = demo_document()
+    """The demo without its fuselage and without extra spaced templates: root, break and tip
+    sections, most tiled."""
+    doc = with_body(demo_document(), None)
     doc["drawings"] = {"paper": "A4"}
     layout = lay_out(size(make_design(doc)))
     path = templates.write_template_pdf(layout, tmp_path_factory.mktemp("demo") / "t.pdf")
@@ -178,8 +222,8 @@ def demo(tmp_path_factory):
 # --- tests ---------------------------------------------------------------------------------------
 
 
-def test_pages_are_a4_in_points(small, demo):
-    for page in small[2] + demo[1]:
+def test_pages_are_a4_in_points(small, demo, bodied):
+    for page in small[2] + demo[1] + bodied[1]:
         # ISO 216 A4: 210 mm x 297 mm = 595.28 pt x 841.89 pt
         assert page.width == pytest.approx(595.28, abs=0.01)
         assert page.height == pytest.approx(841.89, abs=0.01)
@@ -195,8 +239,8 @@ def test_letter_pages_are_8_5_by_11_inches(tmp_path):
         assert page.find("100 mm")
 
 
-def test_check_bar_measures_100_mm(small, demo):
-    for page in small[2] + demo[1]:
+def test_check_bar_measures_100_mm(small, demo, bodied):
+    for page in small[2] + demo[1] + bodied[1]:
         ((_, tx, ty),) = page.find("100 mm")
         s = page.segments
         horizontal = s[np.abs(s[:, 1] - s[:, 3]) < 1e-6]
@@ -270,19 +314,19 @@ def test_large_section_is_tiled_with_matching_crosses(demo):
     assert float(label.split()[1]) == pytest.approx((cx - le) * MM, abs=0.1)
 
 
-def _crosses_by_label(page: Page) -> dict[str, list[tuple[float, float]]]:
+def _crosses_by_label(page: Page, axes: str = "xy") -> dict[str, list[tuple[float, float]]]:
     out: dict[str, list[tuple[float, float]]] = {}
     for c in page.crosses():
-        label = _label_of(page, *c)
+        label = _label_of(page, *c, axes)
         if label is not None:
             out.setdefault(label, []).append(c)
     return {k: sorted(v, key=lambda c: c[1]) for k, v in out.items()}
 
 
-def _label_of(page: Page, x: float, y: float) -> str | None:
-    """The cross label (``x 175.8``) nearest to a cross, within 12 mm."""
+def _label_of(page: Page, x: float, y: float, axes: str = "xy") -> str | None:
+    """The cross label (``x 175.8``; a former's: ``y 16.0``) nearest to a cross, within 12 mm."""
     best = None
-    for text, tx, ty in page.find(r"[xy] -?\d+\.\d"):
+    for text, tx, ty in page.find(rf"[{axes}] -?\d+\.\d"):
         d = math.hypot(tx - x, ty - y)
         if d < 12 * PT_PER_MM and (best is None or d < best[0]):
             best = (d, text)
@@ -315,3 +359,101 @@ def test_template_positions_follow_the_spacing():
     assert got == pytest.approx(expected, abs=1e-9)
     assert templates.template_name("wing", 0.6) == "wing-y0600"
     assert templates.template_name("vertical_tail", 0.25) == "fin-h0250"
+
+
+# --- fuselage formers ----------------------------------------------------------------------------
+
+
+def former_parts(page: Page) -> tuple[np.ndarray, np.ndarray, tuple[float, float]]:
+    """The outline's and the centre ring's segments (pt) on a former page, and the ring's
+    centre: the slanted segments (every other stroke is level or upright), those within 5 mm
+    of the middle of the outline's vertical line of symmetry being the ring."""
+    s = page.segments
+    slanted = s[(np.abs(s[:, 0] - s[:, 2]) > 1e-6) & (np.abs(s[:, 1] - s[:, 3]) > 1e-6)]
+    # the centre line: the longest upright segment
+    upright = page.vertical(0.0)
+    cl = upright[np.argmax(np.abs(upright[:, 3] - upright[:, 1]))]
+    near_cl = np.abs(0.5 * (slanted[:, 0] + slanted[:, 2]) - cl[0]) < 5 * PT_PER_MM
+    # the ring is the cluster of short slanted segments about the centre line
+    short = np.hypot(slanted[:, 2] - slanted[:, 0], slanted[:, 3] - slanted[:, 1]) < PT_PER_MM
+    ring = slanted[near_cl & short]
+    outline = slanted[~(near_cl & short)]
+    centre = ring[:, :2].mean(axis=0)
+    return outline, ring, (float(centre[0]), float(centre[1]))
+
+
+def test_every_fuselage_station_but_the_points_has_a_former(bodied, small):
+    layout, pages = bodied
+    names = {p.find(r"former-\S+ .*")[0][0].split()[0] for p in pages if p.find(r"former-\S+ .*")}
+    # MODEL_BODY: formers at 100 mm and 300 mm; the pointed nose and tail have none
+    assert names == {"former-x0100", "former-x0300"}
+    assert not [p for p in small[2] if "former" in p.plain]  # no fuselage, no formers
+    sections = len(small[2])  # the same airplane without the fuselage
+    one = template_pages(pages, "former-x0100")
+    wide = template_pages(pages, "former-x0300")
+    assert len(one) == 1 and one[0].find(r"former-x0100 .*tile 1 of 1")
+    # 300 mm across (MODEL_BODY) takes more than one 190 mm wide A4 drawing area
+    assert len(wide) >= math.ceil(300 / 190)
+    assert len(pages) == sections + len(one) + len(wide)
+    for k, page in enumerate(wide, start=1):
+        assert page.find(rf"former-x0300 .*tile {k} of {len(wide)}")
+    for number, page in enumerate(pages, start=1):
+        assert f"sheet {number} of {len(pages)}" in page.plain
+        assert "CAUTION: geomgen output is a design aid" in page.plain
+
+
+def test_ellipse_former_is_drawn_1_to_1_with_its_centre_marks(bodied):
+    _, pages = bodied
+    (page,) = template_pages(pages, "former-x0100")
+    outline, ring, (cx, cy) = former_parts(page)
+    assert len(ring) >= 12
+    xs, ys = outline[:, [0, 2]], outline[:, [1, 3]]
+    # 120 mm wide, 160 mm high (MODEL_BODY) at 72 / 25.4 pt per mm
+    assert np.ptp(xs) * MM == pytest.approx(120.0, abs=0.02)
+    assert np.ptp(ys) * MM == pytest.approx(160.0, abs=0.02)
+    # an ellipse encloses pi a b (Archimedes); the 256-point polygon inscribed in it falls
+    # 1.0e-4 short (an affine image of a regular 256-gon: 128 sin(2 pi / 256) a b)
+    area = 0.5 * abs(np.sum(outline[:, 0] * outline[:, 3] - outline[:, 2] * outline[:, 1]))
+    assert area * MM**2 == pytest.approx(math.pi * 60.0 * 80.0, rel=2e-4)
+    # the centre mark in the middle of the outline (an ellipse is symmetric about its centre)
+    assert cx == pytest.approx(0.5 * (xs.min() + xs.max()), abs=0.01)
+    assert cy == pytest.approx(0.5 * (ys.min() + ys.max()), abs=0.01)
+    # the centre line upright and the water line level through it, both past the outline
+    s = page.segments
+    level = s[(np.abs(s[:, 1] - s[:, 3]) < 1e-6) & (np.abs(s[:, 1] - cy) < 0.01)]
+    assert level[:, [0, 2]].min() < xs.min() and level[:, [0, 2]].max() > xs.max()
+    upright = page.vertical(0.0)
+    upright = upright[np.abs(upright[:, 0] - cx) < 0.01]
+    assert upright[:, [1, 3]].min() < ys.min() and upright[:, [1, 3]].max() > ys.max()
+    # labelled: the water line of the centre (MODEL_BODY: z 20 mm) and the centre line
+    assert page.find(r"WL 20\.0") and page.find("CL")
+
+
+def test_wide_former_is_tiled_with_matching_crosses(bodied):
+    _, pages = bodied
+    wide = template_pages(pages, "former-x0300")
+    assert len(wide) == 2 and "row 1 of 1" in wide[0].plain  # one row of two tiles
+    assert "crosses of equal y or z coincide" in wide[0].plain
+    a, b = wide
+    shared = []
+    labels_a, labels_b = _crosses_by_label(a, "yz"), _crosses_by_label(b, "yz")
+    for label in labels_a.keys() & labels_b.keys():
+        for (cx, cy), (dx, dy) in zip(labels_a[label], labels_b[label], strict=True):
+            shared.append((dx - cx, dy - cy))
+    assert len(shared) == 2
+    (ox1, oy1), (ox2, oy2) = shared
+    assert (ox1, oy1) == pytest.approx((ox2, oy2), abs=1e-3)
+    assert oy1 == pytest.approx(0.0, abs=1e-3)
+    # the width reassembled over the tiles: 300 mm (MODEL_BODY), drawn 1:1
+    left = former_parts(a)[0][:, [0, 2]].min()
+    slanted = b.segments[np.abs(b.segments[:, 0] - b.segments[:, 2]) > 1e-6]
+    right = slanted[np.abs(slanted[:, 1] - slanted[:, 3]) > 1e-6][:, [0, 2]].max()
+    assert (right - ox1 - left) * MM == pytest.approx(300.0, abs=0.02)
+    # the centre mark and both extremes of the height lie on the first tile: 180 mm high
+    outline, _, (cx, _) = former_parts(a)
+    assert np.ptp(outline[:, [1, 3]]) * MM == pytest.approx(180.0, abs=0.02)
+    # a joint's crosses are labelled with their y (right of the centre line) in mm
+    (label,) = labels_a.keys() & labels_b.keys()
+    (x_cross, _), _ = labels_a[label]
+    assert label.startswith("y ")
+    assert float(label.split()[1]) == pytest.approx((x_cross - cx) * MM, abs=0.1)
