@@ -30,8 +30,9 @@ from geomgen.tolerances import TOLERANCES
 MM = 1000.0  # mm per m (SI definition)
 TESSELLATION_MM = 2.0  # coarse meshes: the tests check closure, not accuracy
 
-#: The demo fuselage proposed for examples/veyra-t2.yaml (an invented airplane): the wing apex
-#: sits on top of the cabin (z 0.5 + 1.1 / 2 = 1.05 m), the tail cone ends aft of the tails.
+#: The fuselage of examples/veyra-t2.yaml (an invented airplane), kept here so these tests do
+#: not change with the example: the cabin top is at z 0.6 + 1.1 / 2 = 1.15 m, above the
+#: shoulder wing's root section (apex z 0.95 m).
 DEMO_BODY = {
     "nose_x": "0 m",
     "length": "6.35 m",
