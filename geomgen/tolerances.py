@@ -37,6 +37,12 @@ class Tolerances:
     #: the same as a fraction of the surface's root chord for the pierce check (the mesh's
     #: chordal error lets skin points near the joint wander slightly inboard)
     junction_slack: float = 0.005
+    #: printable model pieces: the hole centres (dowel holes) of the two faces of a joint may
+    #: lie at most this far apart (model mm; the figure the printed-model issue asks for)
+    model_hole_alignment: float = 0.05
+    #: printable model pieces put back together vs the scaled solid they were cut from,
+    #: relative volume
+    model_reassembly_volume: float = 0.01
 
 
 TOLERANCES = Tolerances()

@@ -52,6 +52,9 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("mass", "kg", ("[mass]",), '"650 kg" or "1450 lb"'),
         Dimension("density", "kg/m^3", ("[mass] / [length] ** 3",), '"1.24 g/cm^3"'),
         Dimension("temperature", "K", ("[temperature]",), '"288.15 K" or "15 degC"'),
+        Dimension(
+            "pressure", "Pa", ("[mass] / [length] / [time] ** 2",), '"101325 Pa" or "29.92 inHg"'
+        ),
     )
 }
 
