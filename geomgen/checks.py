@@ -703,3 +703,25 @@ def hole_alignment_check(
             dist[i, :] = np.inf
             dist[:, j] = np.inf
     return _abs("hole centres line up across the joint", joint, worst, 0.0, tol_mm, "mm")
+
+
+def threemf_check(
+    written: dict[str, tuple[np.ndarray, np.ndarray]],
+    read: dict[str, tuple[np.ndarray, np.ndarray]],
+) -> Check:
+    """The 3MF file read back holds the same pieces, each with the volume written (1e-6)."""
+    ok = sorted(written) == sorted(read)
+    worst = 0.0
+    if ok:
+        for name, (v, f) in written.items():
+            a = load_mesh(v, f).volume
+            b = load_mesh(*read[name]).volume
+            worst = max(worst, abs(a - b) / abs(a))
+    return _abs(
+        "3MF reads back with the same pieces and volumes",
+        "3MF",
+        worst if ok else float("inf"),
+        0.0,
+        1e-6,
+        "1",
+    )

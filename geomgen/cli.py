@@ -12,8 +12,8 @@ import sys
 from pathlib import Path
 
 from . import __version__
-from .errors import GeomgenError
-from .pipeline import run_build, run_size
+from .errors import GeomgenError, InputError
+from .pipeline import run_build, run_model, run_size
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -47,6 +47,16 @@ def _parser() -> argparse.ArgumentParser:
         default=None,
         help="comma-separated part names to build, e.g. wing-right,aileron-right",
     )
+    model = sub.add_parser(
+        "model", help="printable wind-tunnel model pieces: STL, 3MF, parts list, checks"
+    )
+    model.add_argument("design", help="design file (YAML)")
+    model.add_argument("--out", default="out", help="output folder (default: out)")
+    scale = model.add_mutually_exclusive_group()
+    scale.add_argument("--scale", default=None, help="model scale 1:N, e.g. 1:10")
+    scale.add_argument(
+        "--span", default=None, help='model span tip to tip with its unit, e.g. "900 mm"'
+    )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p
 
@@ -77,6 +87,32 @@ def main(argv: list[str] | None = None) -> int:
                 progress=lambda line: print(f"geomgen: {line}", flush=True),
             )
             _summary(result)
+            return 0
+        if args.command == "model":
+            span = None
+            if args.span is not None:
+                from .units import UnitParseError, parse_quantity
+
+                try:
+                    span = parse_quantity(args.span, "length")
+                except UnitParseError as err:
+                    raise InputError(str(err), path="--span") from None
+                if not 0.05 <= span <= 5.0:
+                    raise InputError(f"must be 50 mm to 5 m (got {args.span!r})", path="--span")
+            result = run_model(
+                Path(args.design),
+                Path(args.out),
+                args.scale,
+                span,
+                progress=lambda line: print(f"geomgen: {line}", flush=True),
+            )
+            print(f"\n{'piece':<34} {'volume (cm^3)':>14} {'mass (g)':>9}")
+            for name, volume_mm3, mass in result.pieces:
+                print(f"{name:<34} {volume_mm3 / 1000:>14.2f} {mass:>9.1f}")
+            print(
+                f"\ngeomgen: model at 1:{1 / result.scale:.4g}; all {result.checks} checks "
+                f"passed; outputs in {result.folder}"
+            )
             return 0
     except GeomgenError as err:
         print(f"geomgen: error: {err}", file=sys.stderr)

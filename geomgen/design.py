@@ -1238,6 +1238,13 @@ def _build(raw: dict[str, Any], source: str) -> Design:
     )
 
 
+def default_model(source: str) -> ModelSpec:
+    """The model settings of a design without a model section: every default, no scale."""
+    spec = _model_spec(_MODEL.parse({}, "model"), {}, source)
+    assert spec is not None
+    return spec
+
+
 def _model_spec(
     raw: dict[str, Any] | None, design: dict[str, Any], source: str
 ) -> ModelSpec | None:

@@ -1,0 +1,605 @@
+"""The printable wind-tunnel model: scale, pieces, holes, Reynolds number (pure math).
+
+Model frame: the aircraft frame (x aft, y right, z up) scaled by the model scale k, in model
+millimetres: a full-size point p (m) sits at 1000 k p. Every part that does not fit the
+printer is cut into pieces across its long axis (the span of a surface side, x for the
+fuselage); each joint gets dowel holes centred on its plane, a wing half gets a spar bore
+through its pieces, the fuselage a sting bore, and every control surface a square key bar on
+its hinge axis that holds each printed deflection at its angle.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from .atmosphere import sutherland_viscosity
+from .design import ModelSpec
+from .errors import GeometryError, InputError
+from .junction import station_of
+from .layout import Layout, SurfaceLayout, fixed_part_name, mean_line_offset, place
+from .sections import placed_section
+
+#: the gas constant of dry air used by the standard atmosphere, J/(kg K) (ICAO Doc 7488)
+AIR_GAS_CONSTANT = 287.05287
+#: pieces are planned this much shorter than the printer's longest side (mm), for the
+#: oriented box's growth by dihedral and twist
+LENGTH_MARGIN = 12.0
+#: a joint stays this far (mm) from a control surface's end and from a root chord in the body
+JOINT_CLEARANCE = 4.0
+#: dowel holes run this much (mm) deeper than half the dowel on each side
+DOWEL_CLEARANCE = 0.5
+#: chord fractions tried for dowels
+_DOWEL_FRACTIONS = np.linspace(0.06, 0.80, 75)
+
+
+@dataclass(frozen=True)
+class Hole:
+    """A straight hole (model mm): round of diameter ``size``, or square of side ``size``
+    with one pair of sides along ``up``."""
+
+    kind: str  # dowel | spar | sting | hinge key
+    start: tuple[float, float, float]
+    end: tuple[float, float, float]
+    size: float
+    up: tuple[float, float, float] | None = None  # square holes only
+    #: stretches (fractions of start -> end) that run through material, for the wall
+    #: checks (a hinge key crosses its cove, a body's spar bore ends in a wing socket)
+    solid: tuple[tuple[float, float], ...] = ((0.0, 1.0),)
+    #: a hinge key: the stretch inside the moving part (between its side gaps)
+    moving: tuple[float, float] | None = None
+
+    @property
+    def length(self) -> float:
+        return math.dist(self.start, self.end)
+
+    @property
+    def section_area(self) -> float:
+        return self.size**2 if self.up is not None else math.pi * self.size**2 / 4.0
+
+
+@dataclass(frozen=True)
+class Joint:
+    """A cut between two pieces of one part (model mm)."""
+
+    part: str
+    index: int  # between piece index and index + 1 (1-based)
+    station: float  # mm along the cut axis
+    point: tuple[float, float, float]
+    normal: tuple[float, float, float]  # unit, towards the next piece
+
+
+@dataclass(frozen=True)
+class PartPlan:
+    """How one full-size part becomes printed pieces (model mm)."""
+
+    part: str  # the full-size part name
+    axis: int  # 0 x, 1 y, 2 z: the cut axis
+    sign: float  # +1 if stations grow along +axis, -1 (left side) if along -axis
+    start: float  # station of the part's inner end (mm along sign * axis)
+    end: float
+    joints: tuple[Joint, ...]
+    holes: tuple[Hole, ...]
+
+    @property
+    def pieces(self) -> tuple[str, ...]:
+        n = len(self.joints) + 1
+        return (self.part,) if n == 1 else tuple(f"{self.part}-{i}" for i in range(1, n + 1))
+
+    def bounds(self, i: int) -> tuple[float, float]:
+        """Station range (mm) of piece i (0-based), inner to outer; the ends are open."""
+        edges = [-math.inf, *(j.station for j in self.joints), math.inf]
+        return edges[i], edges[i + 1]
+
+
+@dataclass(frozen=True)
+class Variant:
+    """One printed deflection of a moving part."""
+
+    part: str  # the full-size moving part, e.g. aileron-right
+    name: str  # the piece, e.g. aileron-right-at+10deg
+    deflection: float  # rad
+
+
+# --- scale ------------------------------------------------------------------------------------
+
+
+def parse_scale(text: str, path: str = "--scale") -> float:
+    """Model scale k (model / full size) from ``1:N``."""
+    parts = text.strip().split(":")
+    try:
+        if len(parts) != 2 or float(parts[0]) != 1.0:
+            raise ValueError
+        n = float(parts[1])
+    except ValueError:
+        raise InputError(
+            f"must be a scale written 1:N, e.g. 1:10 (got {text!r})", path=path
+        ) from None
+    if not 1.0 <= n <= 1000.0:
+        raise InputError(f"must be 1:N with N in [1, 1000] (got {text!r})", path=path)
+    return 1.0 / n
+
+
+def model_scale(layout: Layout, spec: ModelSpec, scale: float | None, span: float | None) -> float:
+    """k from the command line (scale, or a model span in m) or else the design's model
+    section; the wing's span gives k for a span."""
+    d = layout.sizing.design
+    wing_span = layout.sizing.wing.planform.span
+    if scale is not None:
+        return scale
+    if span is not None:
+        return span / wing_span
+    if spec.scale is not None:
+        return spec.scale
+    if spec.span is not None:
+        return spec.span / wing_span
+    raise InputError(
+        "give the model's scale (1:N) or span, in the design or with --scale / --span",
+        source=d.source,
+        path="model.scale",
+    )
+
+
+def deflections(layout: Layout, spec: ModelSpec) -> tuple[Variant, ...]:
+    """Every printed control-surface piece: the requested deflections, or the design's."""
+    asked = dict(spec.deflections)
+    out = []
+    for sl in layout.surfaces:
+        for c in sl.controls:
+            design = next(x for x in sl.sizing.spec.controls if x.kind == c.kind).deflection
+            for angle in asked.get(c.kind, (design,)):
+                out.append(Variant(c.name, f"{c.name}-at{_angle_text(angle)}", angle))
+    return tuple(out)
+
+
+def _angle_text(angle: float) -> str:
+    deg = math.degrees(angle)
+    text = f"{deg:+.1f}".rstrip("0").rstrip(".")
+    return ("0" if text in ("+0", "-0") else text) + "deg"
+
+
+# --- cuts -------------------------------------------------------------------------------------
+
+
+def plan_cuts(
+    start: float, end: float, longest: float, avoid: list[tuple[float, float]]
+) -> tuple[float, ...]:
+    """Stations (mm) cutting [start, end] into the fewest pieces no longer than ``longest``
+    whose cuts lie outside the ``avoid`` intervals where possible: equal pieces first, each
+    cut moved to the nearest allowed station; if that fails, the farthest allowed station
+    within reach from the inner end, piece by piece (which needs the fewest pieces)."""
+    length = end - start
+    if length <= longest:
+        return ()
+    n = math.ceil(length / longest - 1e-9)
+    grid = np.linspace(start, end, 4001)[1:-1]
+    allowed = grid[[all(not (a <= g <= b) for a, b in avoid) for g in grid]]
+    if len(allowed) == 0:
+        allowed = grid
+    for count in range(n, n + 4):
+        cuts = []
+        for i in range(1, count):
+            target = start + length * i / count
+            cuts.append(float(allowed[np.argmin(np.abs(allowed - target))]))
+        edges = [start, *cuts, end]
+        if all(0 < b - a <= longest for a, b in zip(edges[:-1], edges[1:], strict=True)):
+            return tuple(cuts)
+    cuts, at = [], start
+    while end - at > longest:
+        reach = allowed[(allowed > at) & (allowed <= at + longest)]
+        if len(reach) == 0:
+            reach = grid[(grid > at) & (grid <= at + longest)]
+        at = float(reach.max())
+        cuts.append(at)
+    return tuple(cuts)
+
+
+# --- surfaces ---------------------------------------------------------------------------------
+
+
+def _scale_point(p, f: float) -> tuple[float, float, float]:
+    return (float(p[0] * f), float(p[1] * f), float(p[2] * f))
+
+
+def _axis(sl: SurfaceLayout, side: str) -> tuple[int, float, float]:
+    """(axis, sign, offset m) of a surface side: stations s map to axis coordinate
+    sign * (s + offset)."""
+    if not sl.sizing.planform.symmetric:
+        return 2, 1.0, sl.sizing.apex_z
+    return 1, (1.0 if side == "right" else -1.0), 0.0
+
+
+def _section_polygon(sl, side, s, spec_points, te, dirs, f):
+    """The section at station s in its plane (model mm): (N, 2) closed polygon of the two
+    in-plane coordinates (x and z for a wing side, x and y for the fin)."""
+    sec = placed_section(sl.sizing, side, s, spec_points, te, dirs)
+    ring = np.vstack([sec.upper, sec.lower[::-1][1:]]) * f
+    return ring[:, [0, 1]] if not sl.sizing.planform.symmetric else ring[:, [0, 2]]
+
+
+def _distance_to_polygon(poly: np.ndarray, q: np.ndarray) -> float:
+    """Signed distance (mm) from q to a closed polygon's edges: positive inside."""
+    a, b = poly, np.roll(poly, -1, axis=0)
+    ab = b - a
+    t = np.clip(
+        np.einsum("ij,ij->i", q - a, ab) / np.maximum(np.einsum("ij,ij->i", ab, ab), 1e-30), 0, 1
+    )
+    d = np.linalg.norm(a + t[:, None] * ab - q, axis=1).min()
+    straddle = (a[:, 1] > q[1]) != (b[:, 1] > q[1])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        xc = a[:, 0] + (q[1] - a[:, 1]) * ab[:, 0] / ab[:, 1]
+    inside = np.count_nonzero(straddle & (xc > q[0])) % 2 == 1
+    return float(d if inside else -d)
+
+
+def _in_plane(sl: SurfaceLayout, p) -> np.ndarray:
+    return np.array([p[0], p[1]]) if not sl.sizing.planform.symmetric else np.array([p[0], p[2]])
+
+
+def surface_plan(
+    layout: Layout,
+    sl: SurfaceLayout,
+    side: str,
+    spec: ModelSpec,
+    k: float,
+    te: float,
+    dirs: tuple,
+) -> PartPlan:
+    """Cuts, dowels and (wing halves) the spar bore of one fixed surface side."""
+    d = layout.sizing.design
+    points = d.solids.section_points
+    ss, pf = sl.sizing, sl.sizing.planform
+    f = 1000.0 * k
+    axis, sign, offset = _axis(sl, side)
+    name = fixed_part_name(sl.key, side)
+    start, end = (sl.mount_s + offset) * f, (pf.semi_span + offset) * f
+    longest = max(spec.build_volume) * 1000.0 - LENGTH_MARGIN
+    wide = sorted(spec.build_volume)[1] * 1000.0
+    if pf.root_chord * f > wide:
+        raise GeometryError(
+            f"the root chord is {pf.root_chord * f:.0f} mm at this scale, more than the "
+            f"printer's {wide:.0f} mm",
+            part=name,
+            operation="plan pieces",
+        )
+    dowel, wall = spec.dowel_diameter * 1000.0, spec.min_wall * 1000.0
+    key_reach = _key_reach(spec)
+    avoid = []
+    for c in (c for c in sl.controls if c.side == side):
+        for s in (c.s_start, c.s_end):
+            m = (s + offset) * f
+            avoid.append((m - key_reach - JOINT_CLEARANCE, m + key_reach + JOINT_CLEARANCE))
+    cuts = plan_cuts(start, end, longest, avoid)
+    joints, holes = [], []
+    spar = None
+    if spec.spar_diameter is not None and sl.key == "wing":
+        spar = _spar_bore(sl, side, spec, f, te, dirs, start, end, points)
+        if spar is not None:
+            holes.append(spar)
+    direction = np.zeros(3)
+    direction[axis] = sign
+    for i, station in enumerate(cuts, start=1):
+        s = station / f - offset
+        fractions = _dowel_fractions(sl, side, s, spec, f, te, dirs, points, spar)
+        if not fractions:
+            raise GeometryError(
+                f"the joint {station:.1f} mm from the root is too thin for a {dowel:g} mm "
+                f"dowel with a {wall:g} mm wall",
+                part=name,
+                operation="plan dowels",
+            )
+        for fr in fractions:
+            centre = (
+                np.array(place(ss, side, s, np.array([[fr, mean_line_offset(ss, s, fr, dirs)]]))[0])
+                * f
+            )
+            half = spec.dowel_length * 500.0 + DOWEL_CLEARANCE
+            holes.append(
+                Hole(
+                    "dowel",
+                    _scale_point(centre - half * direction, 1.0),
+                    _scale_point(centre + half * direction, 1.0),
+                    dowel,
+                )
+            )
+        lead = np.array(place(ss, side, s, np.array([[0.0, 0.0]]))[0]) * f
+        joints.append(Joint(name, i, station, _scale_point(lead, 1.0), tuple(direction)))
+    return PartPlan(name, axis, sign, start, end, tuple(joints), tuple(holes))
+
+
+def _key_reach(spec: ModelSpec) -> float:
+    """How far (mm) a hinge key bar runs into the fixed part beyond each end of its control."""
+    return max(4.0 * spec.hinge_key * 1000.0, 5.0)
+
+
+def _dowel_fractions(sl, side, s, spec, f, te, dirs, points, spar) -> list[float]:
+    """Chord fractions of the dowels at a joint: the first and last fractions where the
+    dowel keeps its wall inside the section (ahead of any control surface's cove), clear of
+    the spar bore."""
+    ss = sl.sizing
+    poly = _section_polygon(sl, side, s, points, te, dirs, f)
+    r = spec.dowel_diameter * 500.0
+    need = r + spec.min_wall * 1000.0
+    chord = ss.planform.at(s)[1] * f
+    aft_limit = 0.80
+    for c in (c for c in sl.controls if c.side == side):
+        if c.s_start - 1e-9 <= s <= c.s_end + 1e-9:
+            hinge = np.interp(s, [h.s for h in c.hinge], [h.chord_fraction for h in c.hinge])
+            aft_limit = min(aft_limit, hinge - 0.10)
+    ok = []
+    for fr in _DOWEL_FRACTIONS:
+        if fr > aft_limit:
+            break
+        p = place(ss, side, s, np.array([[fr, mean_line_offset(ss, s, fr, dirs)]]))[0] * f
+        q = _in_plane(sl, p)
+        if _distance_to_polygon(poly, q) < need:
+            continue
+        if (
+            spar is not None
+            and abs(fr - spec.spar_at) * chord < r + spec.spar_diameter * 500 + need
+        ):
+            continue
+        ok.append(float(fr))
+    if not ok:
+        return []
+    if len(ok) == 1 or (ok[-1] - ok[0]) * chord < 2 * r + spec.min_wall * 1000.0:
+        return [ok[0]]
+    return [ok[0], ok[-1]]
+
+
+def _spar_bore(sl, side, spec, f, te, dirs, start, end, points) -> Hole | None:
+    """A straight spar bore from the root face outboard, at ``spar_at`` on the mean line,
+    as far out as it keeps its wall (checked at stations along it)."""
+    ss = sl.sizing
+    r = spec.spar_diameter * 500.0
+    need = r + spec.min_wall * 1000.0
+    axis, sign, offset = _axis(sl, side)
+    s0 = sl.mount_s
+    p0 = (
+        place(
+            ss, side, s0, np.array([[spec.spar_at, mean_line_offset(ss, s0, spec.spar_at, dirs)]])
+        )[0]
+        * f
+    )
+    semi = ss.planform.semi_span
+    for s1 in np.linspace(semi * 0.95, s0 + 0.1 * (semi - s0), 18):
+        p1 = (
+            place(
+                ss,
+                side,
+                s1,
+                np.array([[spec.spar_at, mean_line_offset(ss, s1, spec.spar_at, dirs)]]),
+            )[0]
+            * f
+        )
+        good = True
+        for t in np.linspace(0.0, 1.0, 9):
+            s = s0 + t * (s1 - s0)
+            q = _in_plane(sl, p0 + t * (p1 - p0))
+            if _distance_to_polygon(_section_polygon(sl, side, s, points, te, dirs, f), q) < need:
+                good = False
+                break
+        if good:
+            direction = (p1 - p0) / np.linalg.norm(p1 - p0)
+            begin = p0 - direction * 2.0  # opens at the root face
+            total = float(np.linalg.norm(p1 - begin))
+            return Hole(
+                "spar",
+                _scale_point(begin, 1.0),
+                _scale_point(p1, 1.0),
+                r * 2,
+                solid=((2.5 / total, 1.0),),
+            )
+    return None
+
+
+# --- control surfaces -------------------------------------------------------------------------
+
+
+def hinge_key(
+    sl: SurfaceLayout, control, spec: ModelSpec, f: float, up: np.ndarray, side_gap: float
+) -> Hole:
+    """The square key bar's hole on a control's hinge axis (model mm), running up to
+    ``_key_reach`` beyond each end into the fixed part (less where the surface ends sooner,
+    keeping the least wall); one pair of its sides along ``up`` (the sections' thickness
+    direction). ``side_gap``: the control's side gap, model mm."""
+    p0 = np.array(control.hinge[0].point) * f
+    p1 = np.array(control.hinge[-1].point) * f
+    length = float(np.linalg.norm(p1 - p0))
+    e = (p1 - p0) / length
+    reach = _key_reach(spec)
+    wall = spec.min_wall * 1000.0
+    inner_room = (control.s_start - sl.mount_s) * f - wall
+    outer_room = (sl.sizing.planform.semi_span - control.s_end) * f - wall
+    for other in (c for c in sl.controls if c.side == control.side and c is not control):
+        # share the strip between neighbouring control surfaces: each key takes half of it
+        if other.s_end <= control.s_start:
+            inner_room = min(inner_room, (control.s_start - other.s_end) * f / 2 - wall / 2)
+        if other.s_start >= control.s_end:
+            outer_room = min(outer_room, (other.s_start - control.s_end) * f / 2 - wall / 2)
+    r0 = min(reach, inner_room) if inner_room > side_gap + 1.0 else 0.0
+    r1 = min(reach, outer_room) if outer_room > side_gap + 1.0 else 0.0
+    total = r0 + length + r1
+    inside = []  # the fixed part's ends
+    if r0 > 0:
+        inside.append((0.0, (r0 - side_gap - 0.5) / total))
+    if r1 > 0:
+        inside.append(((r0 + length + side_gap + 0.5) / total, 1.0))
+    moving = ((r0 + side_gap + 0.5) / total, (r0 + length - side_gap - 0.5) / total)
+    return Hole(
+        "hinge key",
+        _scale_point(p0 - r0 * e, 1.0),
+        _scale_point(p1 + r1 * e, 1.0),
+        spec.hinge_key * 1000.0,
+        tuple(float(v) for v in up),
+        tuple(inside),
+        moving,
+    )
+
+
+# --- fuselage ---------------------------------------------------------------------------------
+
+
+def body_plan(layout: Layout, spec: ModelSpec, k: float, surface_holes: list[Hole]) -> PartPlan:
+    """Cuts across x, dowels at each joint, the sting bore and the spar bores continued to
+    the plane of symmetry."""
+    body = layout.body
+    assert body is not None
+    f = 1000.0 * k
+    start, end = body[0].x * f, body[-1].x * f
+    longest = max(spec.build_volume) * 1000.0 - LENGTH_MARGIN
+    avoid = []
+    for sl in layout.surfaces:
+        xs = [sl.junction.side_line[0][0], sl.junction.side_line[-1][0]] if sl.junction else []
+        if xs:
+            lo, hi = min(xs) * f, max(xs) * f
+            avoid.append((lo - JOINT_CLEARANCE, hi + JOINT_CLEARANCE))
+    holes: list[Hole] = []
+    sting = _sting(layout, spec, f)
+    holes.append(sting)
+    lo = min(sting.start[0], sting.end[0]) - JOINT_CLEARANCE
+    hi = max(sting.start[0], sting.end[0]) + JOINT_CLEARANCE
+    avoid.append((lo, hi) if spec.sting_axis == "x" else (lo - spec.sting_diameter * 500, hi))
+    for h in surface_holes:
+        if h.kind == "spar":
+            # continue the rod's line to the plane of symmetry, through the body
+            a, b = np.array(h.start), np.array(h.end)
+            e = (b - a) / np.linalg.norm(b - a)
+            t = -a[1] / e[1]
+            centre = a + t * e
+            tip = a + 3.0 * e  # into the wing's root, past its face
+            through = float(np.linalg.norm(a - centre) / np.linalg.norm(tip - centre))
+            holes.append(
+                Hole(
+                    "spar",
+                    _scale_point(centre, 1.0),
+                    _scale_point(tip, 1.0),
+                    h.size,
+                    solid=((0.0, through),),
+                )
+            )
+            avoid.append(
+                (centre[0] - h.size - JOINT_CLEARANCE, centre[0] + h.size + JOINT_CLEARANCE)
+            )
+    cuts = plan_cuts(start, end, longest, avoid)
+    from .junction import body_loops
+
+    joints = []
+    r = spec.dowel_diameter * 500.0
+    for i, x in enumerate(cuts, start=1):
+        loops, _ = body_loops(body, np.array([x / f]))
+        loop = loops[0] * f
+        zc = 0.5 * (loop[:, 1].max() + loop[:, 1].min())
+        half = 0.5 * (loop[:, 0].max() - loop[:, 0].min())
+        y = 0.45 * half
+        if half - y < r + spec.min_wall * 1000.0:
+            raise GeometryError(
+                f"the body is too thin at x = {x:.1f} mm for the joint's dowels",
+                part="fuselage",
+                operation="plan dowels",
+            )
+        reach = spec.dowel_length * 500.0 + DOWEL_CLEARANCE
+        for yy in (-y, y):
+            holes.append(Hole("dowel", (x - reach, yy, zc), (x + reach, yy, zc), 2 * r))
+        joints.append(Joint("fuselage", i, x, (x, 0.0, zc), (1.0, 0.0, 0.0)))
+    return PartPlan("fuselage", 0, 1.0, start, end, tuple(joints), tuple(holes))
+
+
+def _sting(layout: Layout, spec: ModelSpec, f: float) -> Hole:
+    """The sting bore: forward along x from the body's tail end on its centre line, or up
+    from the body's bottom at the wing's MGC quarter chord."""
+    body = layout.body
+    assert body is not None
+    size = spec.sting_diameter * 1000.0
+    depth = spec.sting_depth * 1000.0
+    if spec.sting_axis == "x":
+        tail = body[-1]
+        x1 = tail.x * f
+        return Hole("sting", (x1 + 2.0, 0.0, tail.z * f), (x1 - depth, 0.0, tail.z * f), size)
+    from .junction import body_loops
+
+    x = layout.sizing.wing.mgc_quarter_chord[0]
+    loops, _ = body_loops(body, np.array([x]))
+    bottom = loops[0][:, 1].min() * f
+    return Hole("sting", (x * f, 0.0, bottom - 2.0), (x * f, 0.0, bottom + depth), size)
+
+
+def wing_root_sting(layout: Layout, spec: ModelSpec, f: float, dirs: tuple) -> Hole:
+    """Without a fuselage: the sting bore runs spanwise into the right wing half's root face
+    at 30 % of the root chord on the mean line."""
+    sl = layout.surface("wing")
+    ss = sl.sizing
+    p = place(ss, "right", 0.0, np.array([[0.3, mean_line_offset(ss, 0.0, 0.3, dirs)]]))[0] * f
+    depth = spec.sting_depth * 1000.0
+    return Hole(
+        "sting",
+        (p[0], p[1] - 2.0, p[2]),
+        (p[0], p[1] + depth, p[2]),
+        spec.sting_diameter * 1000.0,
+    )
+
+
+# --- the tunnel -------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class ScaleEffect:
+    """Reynolds numbers on the wing's mean geometric chord."""
+
+    model_chord: float  # m
+    tunnel_speed: float  # m/s
+    tunnel_density: float  # kg/m^3, ideal gas at the tunnel's pressure and temperature
+    tunnel_viscosity: float  # Pa s, Sutherland's law
+    model_reynolds: float
+    full_chord: float  # m
+    full_speed: float  # m/s, the stall speed of the design
+    full_kinematic_viscosity: float  # m^2/s, ISA at the design altitude
+    full_reynolds: float
+
+
+def scale_effect(layout: Layout, spec: ModelSpec, k: float) -> ScaleEffect:
+    """Model Reynolds number rho V c / mu at the tunnel's conditions (density from the ideal
+    gas law, viscosity from Sutherland's law) against the full-size one at the stall speed
+    in the standard atmosphere."""
+    mgc = layout.sizing.wing.planform.mgc
+    rho = spec.tunnel_pressure / (AIR_GAS_CONSTANT * spec.tunnel_temperature)
+    mu = sutherland_viscosity(spec.tunnel_temperature)
+    st = layout.sizing.stall
+    nu_full = st.atmosphere.kinematic_viscosity
+    return ScaleEffect(
+        model_chord=mgc * k,
+        tunnel_speed=spec.tunnel_speed,
+        tunnel_density=rho,
+        tunnel_viscosity=mu,
+        model_reynolds=rho * spec.tunnel_speed * mgc * k / mu,
+        full_chord=mgc,
+        full_speed=st.stall_speed,
+        full_kinematic_viscosity=nu_full,
+        full_reynolds=st.stall_speed * mgc / nu_full,
+    )
+
+
+def station_along(plan: PartPlan, points: np.ndarray) -> np.ndarray:
+    """Stations (mm) of model points along a plan's cut axis."""
+    return plan.sign * points[:, plan.axis]
+
+
+__all__ = [
+    "Hole",
+    "Joint",
+    "PartPlan",
+    "ScaleEffect",
+    "Variant",
+    "body_plan",
+    "deflections",
+    "hinge_key",
+    "model_scale",
+    "parse_scale",
+    "plan_cuts",
+    "scale_effect",
+    "station_of",
+    "surface_plan",
+    "wing_root_sting",
+]
