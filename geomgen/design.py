@@ -1267,7 +1267,8 @@ def _model_spec(
     controls: dict[str, float] = {}
     for key in ("wing", "horizontal_tail", "vertical_tail"):
         for kind, c in ((design.get(key) or {}).get("controls") or {}).items():
-            controls[kind] = c["deflection_range"]
+            if c is not None:
+                controls[kind] = c["deflection_range"]
     deflections = []
     for kind, angles in raw["deflections"].items():
         if angles is None:

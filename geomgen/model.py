@@ -316,10 +316,14 @@ def _key_reach(spec: ModelSpec) -> float:
 
 def _dowel_fractions(sl, side, s, spec, f, te, dirs, points, spar) -> list[float]:
     """Chord fractions of the dowels at a joint: the first and last fractions where the
-    dowel keeps its wall inside the section (ahead of any control surface's cove), clear of
-    the spar bore."""
+    dowel keeps its wall inside the sections along its hole (ahead of any control surface's
+    cove), clear of the spar bore."""
     ss = sl.sizing
-    poly = _section_polygon(sl, side, s, points, te, dirs, f)
+    # the dowel runs straight along the span axis: its wall is checked in the joint's
+    # section and in the sections at both ends of its hole
+    reach = (spec.dowel_length * 500.0 + DOWEL_CLEARANCE) / f
+    ends = [max(sl.mount_s, s - reach), s, min(ss.planform.semi_span, s + reach)]
+    polys = [_section_polygon(sl, side, v, points, te, dirs, f) for v in ends]
     r = spec.dowel_diameter * 500.0
     need = r + spec.min_wall * 1000.0
     chord = ss.planform.at(s)[1] * f
@@ -334,7 +338,7 @@ def _dowel_fractions(sl, side, s, spec, f, te, dirs, points, spar) -> list[float
             break
         p = place(ss, side, s, np.array([[fr, mean_line_offset(ss, s, fr, dirs)]]))[0] * f
         q = _in_plane(sl, p)
-        if _distance_to_polygon(poly, q) < need:
+        if min(_distance_to_polygon(poly, q) for poly in polys) < need:
             continue
         if (
             spar is not None
