@@ -45,8 +45,9 @@ def trapezoid_document(
     sweep_at: float = 0.25,
 ) -> dict:
     """A plain trapezoidal wing with no incidence, twist or dihedral, plus the demo's tails
-    (no fuselage)."""
+    (no fuselage, no model section: its deflections name the demo's control surfaces)."""
     doc = bodyless_document()
+    doc.pop("model", None)
     wing = doc["wing"]
     wing.pop("panels")
     wing.update(
