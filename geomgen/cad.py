@@ -510,6 +510,18 @@ def deflect_part(build_: Build, name: str, angle: float) -> cq.Shape:
 # --- exports --------------------------------------------------------------------------------
 
 
+def bounding_box(shape: cq.Shape) -> tuple[list[float], list[float]]:
+    """(min, max) corners (mm) of the exact geometry's axis-aligned box (not the mesh's:
+    after meshing, ``BoundingBox()`` grows by the triangles' tolerance)."""
+    from OCP.Bnd import Bnd_Box
+    from OCP.BRepBndLib import BRepBndLib
+
+    box = Bnd_Box()
+    BRepBndLib.AddOptimal_s(shape.wrapped, box, False, False)
+    x0, y0, z0, x1, y1, z1 = box.Get()
+    return [x0, y0, z0], [x1, y1, z1]
+
+
 def write_step(parts: Iterable[Part], path: Path, name: str) -> None:
     """One STEP assembly in mm, every part named and coloured by kind."""
     assy = cq.Assembly(name=name)

@@ -154,6 +154,7 @@ def run_build(
             )
         checks_text = _checks_json(results)
         folder.write_text("checks.json", checks_text)
+        folder.write_text("parts.json", _parts_json(parts, cad))
         from .html_report import write_html
 
         write_html(
@@ -166,6 +167,21 @@ def run_build(
         )
         stage("wrote report.html")
     return BuildResult(out_root / d.name, tuple(part_rows), len(results))
+
+
+def _parts_json(parts, cad) -> str:
+    """Every built part's volume and axis-aligned bounding box (mm), for ``geomgen diff``."""
+    rows = []
+    for p in parts:
+        lo, hi = cad.bounding_box(p.shape)
+        rows.append(
+            {
+                "name": p.name,
+                "volume": {"value": cad.volume(p.shape), "unit": "mm^3"},
+                "bounding_box": {"min": lo, "max": hi, "unit": "mm"},
+            }
+        )
+    return json.dumps({"parts": rows}, indent=2) + "\n"
 
 
 def _checks_json(results) -> str:
