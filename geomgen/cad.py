@@ -357,7 +357,9 @@ def _deflect(
 # --- the build ------------------------------------------------------------------------------
 
 
-def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None) -> Build:
+def build(
+    layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=None
+) -> Build:
     """Loft every surface side, cut its control surfaces free, deflect them, and loft the
     fuselage when there is one; ``only`` limits the build to the named parts' surfaces (part
     names as in the report)."""
@@ -374,10 +376,17 @@ def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None) -> Bui
             if only is not None and not names & only:
                 continue
             right = next((b for b in sides if b.surface is sl and b.side == "right"), None)
-            if side == "left" and right is not None:
-                sb = mirror_side(right)
+            key = side_key(sl, side, layout, dirs) if store is not None else ""
+            entry = store.get(key, fixed_part_name(sl.key, side)) if store is not None else None
+            if entry is not None:
+                sb = load_side(sl, side, entry)
             else:
-                sb = build_side(sl, side, points, te, dirs)
+                if side == "left" and right is not None:
+                    sb = mirror_side(right)
+                else:
+                    sb = build_side(sl, side, points, te, dirs)
+                if store is not None:
+                    store.put(key, lambda folder, sb=sb: save_side(sb, folder))
             sides.append(sb)
             chords = [st.chord for st in sl.sizing.planform.stations]
             fixed_name = base if side == "centre" else f"{base}-{side}"
@@ -404,17 +413,20 @@ def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None) -> Bui
     if layout.body is not None and (only is None or "fuselage" in only):
         body = layout.body
         size_min = min(max(st.width for st in body), max(st.height for st in body))
+        shape = None
+        if store is not None:
+            from .cache import key_of
+
+            key = key_of("fuselage", body)
+            entry = store.get(key, "fuselage")
+            if entry is not None:
+                shape = _load_shape(entry, "fuselage")
+        if shape is None:
+            shape = build_fuselage(body)
+            if store is not None:
+                store.put(key, lambda folder: _save_shape(shape, folder, "fuselage"))
         parts.append(
-            Part(
-                "fuselage",
-                "fuselage",
-                "fuselage",
-                "centre",
-                build_fuselage(body),
-                False,
-                0.0,
-                size_min * MM,
-            )
+            Part("fuselage", "fuselage", "fuselage", "centre", shape, False, 0.0, size_min * MM)
         )
     return Build(layout=layout, sides=tuple(sides), parts=tuple(parts))
 
@@ -455,6 +467,82 @@ def build_side(sl: SurfaceLayout, side: str, points: int, te: float, dirs: tuple
             )
         )
     return SideBuild(surface=sl, side=side, whole=whole, fixed=fixed, controls=tuple(controls))
+
+
+# --- the build cache: sides stored as BREP files with what the checks need -----------------
+
+
+def side_key(sl: SurfaceLayout, side: str, layout: Layout, dirs: tuple) -> str:
+    """Cache key of one surface side: its layout (sizing, spec, corners, controls, mount),
+    the solids settings, the coordinates of every section it uses, and the versions."""
+    from . import airfoils
+    from .cache import key_of
+
+    names = sorted({n for st in sl.sizing.planform.stations for n in st.airfoil[:2]})
+    sections = [(n, airfoils.load(n, dirs).upper, airfoils.load(n, dirs).lower) for n in names]
+    return key_of("surface side", side, sl, layout.sizing.design.solids, sections)
+
+
+def _save_shape(shape: cq.Shape, folder: Path, name: str) -> None:
+    shape.exportBrep(str(folder / f"{name}.brep"))
+    (folder / f"{name}.volume").write_text(repr(volume(shape)), encoding="utf-8")
+
+
+def _load_shape(folder: Path, name: str) -> cq.Shape:
+    shape = cq.Shape.importBrep(str(folder / f"{name}.brep"))
+    if not shape.isValid():
+        raise GeometryError("a cached solid reads back invalid", part=name, operation="cache")
+    _VOLUMES[shape] = float((folder / f"{name}.volume").read_text(encoding="utf-8"))
+    return shape
+
+
+def save_side(sb: SideBuild, folder: Path) -> None:
+    """Write a side's solids (BREP) and the data its checks need (JSON)."""
+    import json
+
+    _save_shape(sb.whole, folder, "whole")
+    _save_shape(sb.fixed, folder, "fixed")
+    meta = []
+    for i, cb in enumerate(sb.controls):
+        for what in ("moving_undeflected", "moving", "aft_portion"):
+            _save_shape(getattr(cb, what), folder, f"c{i}-{what}")
+        meta.append(
+            {
+                "name": cb.layout.name,
+                "axis": [list(map(float, p)) for p in cb.axis],
+                "hinge_plane": [list(map(float, p)) for p in cb.hinge_plane],
+                "cut_region_volume": repr(cb.cut_region_volume),
+            }
+        )
+    (folder / "controls.json").write_text(json.dumps(meta, indent=1), encoding="utf-8")
+
+
+def load_side(sl: SurfaceLayout, side: str, folder: Path) -> SideBuild:
+    """A side read back from the cache (its layout from the current one: the key matched)."""
+    import json
+
+    meta = json.loads((folder / "controls.json").read_text(encoding="utf-8"))
+    controls = []
+    for i, m in enumerate(meta):
+        c = next(x for x in sl.controls if x.side == side and x.name == m["name"])
+        controls.append(
+            ControlBuild(
+                layout=c,
+                moving_undeflected=_load_shape(folder, f"c{i}-moving_undeflected"),
+                moving=_load_shape(folder, f"c{i}-moving"),
+                axis=tuple(np.array(p) for p in m["axis"]),  # type: ignore[arg-type]
+                hinge_plane=tuple(np.array(p) for p in m["hinge_plane"]),  # type: ignore[arg-type]
+                aft_portion=_load_shape(folder, f"c{i}-aft_portion"),
+                cut_region_volume=float(m["cut_region_volume"]),
+            )
+        )
+    return SideBuild(
+        surface=sl,
+        side=side,
+        whole=_load_shape(folder, "whole"),
+        fixed=_load_shape(folder, "fixed"),
+        controls=tuple(controls),
+    )
 
 
 def _mirror(shape: cq.Shape, part: str) -> cq.Shape:

@@ -77,6 +77,13 @@ class BuildResult:
     folder: Path
     parts: tuple[tuple[str, float, float], ...]  # name, volume (mm^3), STL deflection (mm)
     checks: int  # number of checks run (all passed)
+    reused: tuple[str, ...] = ()  # solids taken from the cache (fixed part names, fuselage)
+    rebuilt: tuple[str, ...] = ()  # solids built anew
+    unchanged: bool = False  # nothing changed: every output of the last build was kept
+
+
+#: the stamp a build leaves in its folder: the key of its inputs and its files' hashes
+BUILD_STAMP = ".build-stamp.json"
 
 
 def run_build(
@@ -85,8 +92,11 @@ def run_build(
     units: str | None,
     only: set[str] | None = None,
     progress: Callable[[str], None] = lambda _: None,
+    fresh: bool = False,
 ) -> BuildResult:
-    """Size, lay out, build the solids, export STEP and STL, check everything."""
+    """Size, lay out, build the solids, export STEP and STL, check everything. Solids come
+    from the cache under ``out_root/.cache`` when their inputs are unchanged, and a build
+    whose inputs are all unchanged keeps the last outputs; ``fresh`` ignores both."""
     t0 = time.perf_counter()
 
     def stage(text: str) -> None:
@@ -102,10 +112,22 @@ def run_build(
                 f"unknown part {unknown[0]!r}; parts of this design: {', '.join(sorted(known))}",
                 path="--only",
             )
+    from .cache import Cache, key_of
+
+    build_key = key_of(
+        "build", design_path.read_bytes(), _section_data(layout, dirs), sorted(only or ()), units
+    )
+    target = out_root / d.name
+    if not fresh and _unchanged(target, build_key):
+        stage("nothing changed since the last build: every output kept")
+        return _kept_result(target)
     from . import cad, checks
 
-    built = cad.build(layout, dirs, only)
+    store = Cache(out_root / ".cache", enabled=not fresh)
+    built = cad.build(layout, dirs, only, store)
     parts = built.parts
+    if store.hits:
+        stage(f"reused {len(store.hits)} solid(s) from the cache: {', '.join(store.hits)}")
     body = next((p for p in parts if p.name == "fuselage"), None)
     stage(f"built {len(parts)} solids")
     results: list = []
@@ -155,6 +177,7 @@ def run_build(
         checks_text = _checks_json(results)
         folder.write_text("checks.json", checks_text)
         folder.write_text("parts.json", _parts_json(parts, cad))
+        # (the stamp is written last, once report.html is there: see below)
         from .html_report import write_html
 
         write_html(
@@ -166,7 +189,49 @@ def run_build(
             units=system,
         )
         stage("wrote report.html")
-    return BuildResult(out_root / d.name, tuple(part_rows), len(results))
+        from .cache import manifest_of
+
+        stamp = {"key": build_key, "files": manifest_of(folder.temp, skip=(BUILD_STAMP,))}
+        folder.write_text(BUILD_STAMP, json.dumps(stamp, indent=1, sort_keys=True))
+    return BuildResult(
+        out_root / d.name,
+        tuple(part_rows),
+        len(results),
+        tuple(store.hits),
+        tuple(store.misses),
+    )
+
+
+def _section_data(layout, dirs: tuple) -> list:
+    """Coordinates of every section the surfaces use (a changed coordinate file changes the
+    build key)."""
+    from . import airfoils
+
+    names = sorted(
+        {n for sl in layout.surfaces for st in sl.sizing.planform.stations for n in st.airfoil[:2]}
+    )
+    return [(n, airfoils.load(n, dirs).upper, airfoils.load(n, dirs).lower) for n in names]
+
+
+def _unchanged(target: Path, key: str) -> bool:
+    """The folder holds a build of exactly these inputs, every file as that build left it."""
+    try:
+        stamp = json.loads((target / BUILD_STAMP).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return False
+    if stamp.get("key") != key:
+        return False
+    from .cache import manifest_of
+
+    return stamp.get("files") == manifest_of(target, skip=(BUILD_STAMP,))
+
+
+def _kept_result(target: Path) -> BuildResult:
+    parts = json.loads((target / "parts.json").read_text(encoding="utf-8"))["parts"]
+    checks = json.loads((target / "checks.json").read_text(encoding="utf-8"))
+    rows = tuple((p["name"], p["volume"]["value"], float("nan")) for p in parts)
+    names = tuple(p["name"] for p in parts)
+    return BuildResult(target, rows, checks["count"], names, (), True)
 
 
 def _parts_json(parts, cad) -> str:
