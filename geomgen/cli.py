@@ -47,6 +47,11 @@ def _parser() -> argparse.ArgumentParser:
         default=None,
         help="comma-separated part names to build, e.g. wing-right,aileron-right",
     )
+    build.add_argument(
+        "--fresh",
+        action="store_true",
+        help="ignore the cache of solids and the last build's outputs; build everything anew",
+    )
     model = sub.add_parser(
         "model", help="printable wind-tunnel model pieces: STL, 3MF, parts list, checks"
     )
@@ -56,6 +61,46 @@ def _parser() -> argparse.ArgumentParser:
     scale.add_argument("--scale", default=None, help="model scale 1:N, e.g. 1:10")
     scale.add_argument(
         "--span", default=None, help='model span tip to tip with its unit, e.g. "900 mm"'
+    )
+    diff = sub.add_parser(
+        "diff", help="what changed between two design files or two output folders"
+    )
+    diff.add_argument("old", help="design file (YAML) or output folder holding report.json")
+    diff.add_argument("new", help="the same kind as OLD")
+    diff.add_argument("--format", choices=("md", "json"), default="md", help="(default: md)")
+    diff.add_argument(
+        "--tolerance",
+        type=float,
+        default=1e-9,
+        help="relative difference below which two values are equal (default: 1e-9)",
+    )
+    sweep = sub.add_parser(
+        "sweep", help="size (or build) a grid of variants of one design; one CSV row each"
+    )
+    sweep.add_argument("design", help="design file (YAML)")
+    sweep.add_argument(
+        "--vary",
+        action="append",
+        default=[],
+        metavar="KEY=VALUES",
+        help="a key path and its values: START:STOP:STEP or V1,V2,...; a unit once at the end "
+        'applies to every bare number, e.g. "requirements.stall_speed=40:50:5 kn" or '
+        "wing.panels[1].chord_ratio=0.55,0.6 (repeat for a grid; the first changes slowest)",
+    )
+    sweep.add_argument("--build", action="store_true", help="build the solids of every variant")
+    runner = sweep.add_mutually_exclusive_group()
+    runner.add_argument(
+        "--jobs", type=int, default=1, help="local worker processes (default: 1, in-process)"
+    )
+    runner.add_argument(
+        "--scheduler",
+        default=None,
+        metavar="ADDRESS",
+        help="run the variants on this Dask distributed scheduler, e.g. tcp://host:8786",
+    )
+    sweep.add_argument("--out", default="out", help="output folder (default: out)")
+    sweep.add_argument(
+        "--plot", default=None, metavar="X:Y[,X:Y...]", help="plot summary columns to sweep.png"
     )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p
@@ -69,6 +114,33 @@ def main(argv: list[str] | None = None) -> int:
 
             print(json.dumps(json_schema(), indent=2))
             return 0
+        if args.command == "diff":
+            from . import diff
+
+            result = diff.diff_paths(Path(args.old), Path(args.new), args.tolerance)
+            if args.format == "json":
+                print(diff.to_json(result))
+            else:
+                print(diff.to_markdown(result, args.old, args.new), end="")
+            return 0 if result["equal"] else 1
+        if args.command == "sweep":
+            from .sweep import run_sweep
+
+            swept = run_sweep(
+                Path(args.design),
+                args.vary,
+                Path(args.out),
+                build=args.build,
+                jobs=args.jobs,
+                scheduler=args.scheduler,
+                plot=args.plot,
+            )
+            plotted = f" and {swept.plot_path}" if swept.plot_path else ""
+            print(
+                f"geomgen: wrote {swept.csv_path}{plotted}: {swept.passed} variant(s) ran, "
+                f"{swept.failed} failed"
+            )
+            return 1 if swept.failed else 0
         if args.command == "size":
             folder = run_size(
                 Path(args.design), Path(args.out), args.units, drawings=not args.no_drawings
@@ -85,6 +157,7 @@ def main(argv: list[str] | None = None) -> int:
                 args.units,
                 only,
                 progress=lambda line: print(f"geomgen: {line}", flush=True),
+                fresh=args.fresh,
             )
             _summary(result)
             return 0
@@ -124,6 +197,9 @@ def main(argv: list[str] | None = None) -> int:
 
 
 def _summary(result) -> None:
+    if result.unchanged:
+        print(f"geomgen: unchanged since the last build; outputs kept in {result.folder}")
+        return
     print(f"\n{'part':<20} {'volume (cm^3)':>14} {'STL tolerance (mm)':>19}")
     for name, volume_mm3, deflection in result.parts:
         print(f"{name:<20} {volume_mm3 / 1000:>14.1f} {deflection:>19.3f}")

@@ -1,0 +1,182 @@
+"""``geomgen sweep``: rows against independent runs, the lift equation across a stall-speed
+sweep, the same CSV from one process, a process pool and a Dask cluster, failing variants,
+and bad ``--vary`` options."""
+
+from __future__ import annotations
+
+import contextlib
+import csv
+import io
+import json
+import math
+from pathlib import Path
+
+import pytest
+import yaml
+from designs import DEMO, demo_document
+
+from geomgen.cli import main
+from geomgen.pipeline import run_size
+from geomgen.sweep import EXPOSED_COLUMNS, REPORT_COLUMNS
+
+#: 1 kn = 1852 m / 3600 s exactly (international nautical mile, 1929)
+KN = 1852.0 / 3600.0
+
+#: a small grid of the demo that sizes in every point: 2 x 2 variants, first --vary slowest
+GRID = ["--vary", "requirements.stall_speed=42:45:3 kn", "--vary", "wing.aspect_ratio=7.4,8.2"]
+
+
+def sweep(out: Path, *args: str) -> tuple[int, str, str]:
+    """``geomgen sweep <demo> --out OUT ARGS`` in-process: exit code, stdout, stderr."""
+    stdout, stderr = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
+        code = main(["sweep", str(DEMO), "--out", str(out), *args])
+    return code, stdout.getvalue(), stderr.getvalue()
+
+
+def rows(out: Path) -> list[dict[str, str]]:
+    with (out / "veyra-t2-sweep" / "summary.csv").open(encoding="utf-8", newline="") as f:
+        return list(csv.DictReader(f))
+
+
+def report_number(report: dict, path: tuple[str, ...]) -> float:
+    node = report
+    for p in path:
+        node = node[p]
+    return node["value"]
+
+
+@pytest.fixture(scope="module")
+def grid_serial(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The 2 x 2 grid run in this process (--jobs 1)."""
+    out = tmp_path_factory.mktemp("serial")
+    code, stdout, _ = sweep(out, *GRID)
+    assert code == 0, stdout
+    return out
+
+
+def test_rows_equal_separate_size_runs_of_hand_written_variants(grid_serial, tmp_path):
+    # The reference is an independent `run_size` of each variant, its design written here by
+    # hand from the demo (not from the sweep's design files).
+    got = rows(grid_serial)
+    expected_grid = [("42 kn", "7.4"), ("42 kn", "8.2"), ("45 kn", "7.4"), ("45 kn", "8.2")]
+    assert [(r["requirements.stall_speed"], r["wing.aspect_ratio"]) for r in got] == expected_grid
+    assert [r["variant"] for r in got] == [f"veyra-t2-v00{i}" for i in range(1, 5)]
+    for row, (speed, aspect_ratio) in zip(got, expected_grid, strict=True):
+        assert row["status"] == "ok"
+        doc = demo_document()
+        doc["name"] = "by-hand"
+        doc["requirements"]["stall_speed"] = speed
+        doc["wing"]["aspect_ratio"] = float(aspect_ratio)
+        design = tmp_path / f"by-hand-{speed}-{aspect_ratio}.yaml".replace(" ", "")
+        design.write_text(yaml.safe_dump(doc), encoding="utf-8")
+        folder = run_size(design, tmp_path / design.stem, None, drawings=False)
+        report = json.loads((folder / "report.json").read_text(encoding="utf-8"))
+        for column, path, _ in REPORT_COLUMNS + EXPOSED_COLUMNS:  # the demo has a fuselage
+            assert float(row[column]) == pytest.approx(report_number(report, path), rel=1e-12)
+        # the sweep keeps each variant's design file and report beside it
+        variant = grid_serial / "veyra-t2-sweep" / row["variant"]
+        written = yaml.safe_load((variant / "design.yaml").read_text(encoding="utf-8"))
+        assert written["name"] == row["variant"]
+        assert written["requirements"]["stall_speed"] == speed
+        assert (variant / "report.json").is_file()
+
+
+def test_wing_area_scales_as_one_over_stall_speed_squared(tmp_path):
+    # Lift equation at the stall, W = 1/2 rho V^2 S CL_max (definition of the lift
+    # coefficient): at fixed W, rho and CL_max, S is proportional to 1/V^2; the span at a fixed
+    # aspect ratio is sqrt(AR S) (definition of the aspect ratio, AR = b^2 / S).
+    code, _, _ = sweep(tmp_path, "--vary", "requirements.stall_speed=40:46:2 kn")
+    assert code == 0
+    got = rows(tmp_path)
+    speeds = [float(r["requirements.stall_speed"].removesuffix(" kn")) * KN for r in got]
+    assert speeds == pytest.approx([v * KN for v in (40, 42, 44, 46)], rel=1e-12)
+    areas = [float(r["wing_area_m2"]) for r in got]
+    spans = [float(r["wing_span_m"]) for r in got]
+    for v, s, b in zip(speeds, areas, spans, strict=True):
+        assert s / areas[0] == pytest.approx((speeds[0] / v) ** 2, rel=1e-9)
+        assert b == pytest.approx(math.sqrt(7.8 * s), rel=1e-9)  # the demo's AR 7.8
+
+
+def test_process_pool_and_dask_cluster_give_the_same_csv(grid_serial, tmp_path):
+    distributed = pytest.importorskip("distributed")
+    serial = (grid_serial / "veyra-t2-sweep" / "summary.csv").read_text(encoding="utf-8")
+
+    code, _, _ = sweep(tmp_path / "pool", *GRID, "--jobs", "2")
+    assert code == 0
+    pool = (tmp_path / "pool" / "veyra-t2-sweep" / "summary.csv").read_text(encoding="utf-8")
+    assert pool == serial
+
+    with distributed.LocalCluster(
+        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None
+    ) as cluster:
+        code, _, _ = sweep(tmp_path / "dask", *GRID, "--scheduler", cluster.scheduler_address)
+    assert code == 0
+    dask = (tmp_path / "dask" / "veyra-t2-sweep" / "summary.csv").read_text(encoding="utf-8")
+    assert dask == serial
+
+
+def test_a_failing_variant_is_recorded_and_the_others_run(tmp_path):
+    # 1.8 is outside the tail taper ratio's allowed (0.02, 1.5]: only that variant fails
+    code, stdout, _ = sweep(tmp_path, "--vary", "horizontal_tail.taper_ratio=0.5,1.8,0.8")
+    assert code == 1
+    assert "2 variant(s) ran, 1 failed" in stdout
+    got = rows(tmp_path)
+    assert [r["horizontal_tail.taper_ratio"] for r in got] == ["0.5", "1.8", "0.8"]
+    assert [r["status"] for r in got][0::2] == ["ok", "ok"]
+    assert got[1]["status"].startswith("failed: ")
+    assert "horizontal_tail.taper_ratio" in got[1]["status"]
+    assert got[1]["wing_area_m2"] == ""
+    # the tail's taper ratio changes neither the wing nor the tail area: the tail volume
+    # coefficient V_H = S_H l_H / (S c) (common practice) holds no tail taper ratio
+    for column in ("wing_area_m2", "horizontal_tail_area_m2"):
+        assert float(got[0][column]) == pytest.approx(float(got[2][column]), rel=1e-12)
+    folder = tmp_path / "veyra-t2-sweep"
+    assert (folder / "veyra-t2-v002" / "design.yaml").is_file()
+    assert not (folder / "veyra-t2-v002" / "report.json").exists()
+
+
+def test_plot_is_a_png(tmp_path):
+    code, _, _ = sweep(
+        tmp_path, *GRID, "--plot", "requirements.stall_speed:wing_area_m2,wing_span_m:wing_mgc_m"
+    )
+    assert code == 0
+    png = tmp_path / "veyra-t2-sweep" / "sweep.png"
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (PNG spec, 5.2)
+
+
+@pytest.mark.parametrize(
+    "vary",
+    [
+        "wing.no_such_key=1,2",  # not a key of a design file
+        "wing.panels[5].chord_ratio=0.5,0.6",  # the demo's wing has two panels
+        "wing.aspect_ratio=8:7:0.5",  # empty range
+        "wing.aspect_ratio=7:8:0",  # STEP <= 0
+        "wing.aspect_ratio=7:8:-1",
+        "wing.aspect_ratio=5:10:0.001",  # 5001 variants
+        "requirements.stall_speed=40:50:5",  # a speed needs its unit
+        "wing.aspect_ratio=7 m,8 m",  # a dimensionless key takes bare numbers
+        "requirements.stall_speed=40,45 m",  # a length is not a speed
+        "wing.apex=1,2",  # a group, not a value
+        "wing.aspect_ratio",  # no values
+    ],
+)
+def test_bad_vary_exits_2_with_one_line_naming_vary(tmp_path, vary):
+    code, stdout, stderr = sweep(tmp_path, "--vary", vary)
+    assert code == 2
+    assert stderr.count("\n") == 1 and "--vary" in stderr
+    assert not (tmp_path / "veyra-t2-sweep").exists()  # nothing written
+
+
+def test_a_grid_over_the_limit_is_refused(tmp_path):
+    # 30 x 20 = 600 variants > 500
+    code, _, stderr = sweep(
+        tmp_path,
+        "--vary",
+        "wing.aspect_ratio=6:8.9:0.1",
+        "--vary",
+        "requirements.cl_max=1.2:2.15:0.05",
+    )
+    assert code == 2
+    assert "--vary" in stderr and "500" in stderr
+    assert not (tmp_path / "veyra-t2-sweep").exists()
