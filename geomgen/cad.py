@@ -17,9 +17,11 @@ silently coarsens faces that a boolean trimmed).
 from __future__ import annotations
 
 import math
+import re
 import weakref
 from collections.abc import Iterable
 from dataclasses import dataclass
+from datetime import UTC, datetime
 from pathlib import Path
 
 import cadquery as cq
@@ -41,6 +43,7 @@ from .errors import GeometryError
 from .fuselage import BodyStation, loft_sections
 from .layout import PART_NAMES, ControlLayout, Layout, SurfaceLayout, fixed_part_name
 from .sections import PlacedSection, surface_sections, unit_section
+from .stamp import output_time
 
 MM = 1000.0  # mm per m
 
@@ -610,8 +613,11 @@ def bounding_box(shape: cq.Shape) -> tuple[list[float], list[float]]:
     return [x0, y0, z0], [x1, y1, z1]
 
 
-def write_step(parts: Iterable[Part], path: Path, name: str) -> None:
-    """One STEP assembly in mm, every part named and coloured by kind."""
+def write_step(parts: Iterable[Part], path: Path, name: str, when: datetime | None = None) -> None:
+    """One STEP assembly in mm, every part named and coloured by kind. The same parts give
+    the same bytes: the header's time stamp is ``when`` (default :func:`stamp.output_time`
+    without a design: SOURCE_DATE_EPOCH or the fixed date), and the colour entities, which
+    the writer emits in an order that changes from run to run, are put in a stable order."""
     assy = cq.Assembly(name=name)
     for p in parts:
         assy.add(p.shape, name=p.name, color=cq.Color(*COLOURS[p.kind], 1.0))
@@ -619,6 +625,129 @@ def write_step(parts: Iterable[Part], path: Path, name: str) -> None:
         assy.export(str(path), exportType="STEP", unit="MM")
     except Exception as err:
         raise GeometryError(str(err), part=name, operation="STEP export") from err
+    text = Path(path).read_bytes().decode("latin-1")  # Part 21 files are 8-bit text
+    text = _stable_presentation(_stamped_header(text, when or output_time(None), name))
+    Path(path).write_bytes(text.encode("latin-1"))
+
+
+# ISO 10303-21 (the STEP clear-text file): a string is '...' with '' for a quote inside; an
+# entity instance is "#id = ...;"; whitespace outside strings carries no meaning.
+_STRING = r"'(?:[^']|'')*'"
+_TOKEN = re.compile(rf"{_STRING}|#(\d+)")
+_INSTANCE = re.compile(rf"#(\d+)\s*=\s*((?:{_STRING}|[^';])*);")
+
+
+def _stamped_header(text: str, when: datetime, name: str) -> str:
+    """Set the time stamp (FILE_NAME's second attribute, in ISO 10303-21 an ISO 8601 date and
+    time) to ``when`` in UTC: OCCT writes the clock's local time there. A text rewrite of that
+    one string in the HEADER section, since cadquery's exporter gives no hook between the
+    transfer and the write; the other header strings OCCT writes are constants."""
+    end = text.find("ENDSEC;")
+    header = re.compile(rf"(FILE_NAME\(\s*{_STRING}\s*,\s*)'[^']*'")
+    fixed, count = header.subn(
+        lambda m: m.group(1) + "'" + when.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%S+00:00") + "'",
+        text[:end],
+        count=1,
+    )
+    if count != 1:
+        raise GeometryError("no FILE_NAME in the header", part=name, operation="STEP export")
+    return fixed + text[end:]
+
+
+def _stable_presentation(text: str) -> str:
+    """Renumber the colour entities that close the DATA section (from the first
+    MECHANICAL_DESIGN_GEOMETRIC_PRESENTATION_REPRESENTATION on) in a stable order.
+
+    OCCT 7.9's STEPCAFControl_Writer emits one presentation per part in an order that changes
+    from run to run, and a colour used by several parts sits with whichever of them came
+    first (measured: two builds of the demo differed only there and in the header). The
+    block's entities form a graph whose roots are the presentations; this sorts the roots by
+    their content (references into the block expanded, references to the geometry, which is
+    numbered the same every time, kept) and numbers the block afresh in depth-first order
+    from them, each instance rewrapped by :func:`_wrapped`. The graph, hence the file's
+    meaning, is unchanged. If the block is not such a graph (nothing outside the block may
+    refer into it; every instance must hang off a root) the text is left as it was."""
+    first = re.search(
+        r"^#(\d+)\s*=\s*MECHANICAL_DESIGN_GEOMETRIC_PRESENTATION_REPRESENTATION", text, re.M
+    )
+    end = text.rfind("ENDSEC;")
+    if first is None or end < first.start():
+        return text
+    start = int(first.group(1))
+    head, block, tail = text[: first.start()], text[first.start() : end], text[end:]
+    entities: dict[int, str] = {}
+    at = 0
+    for m in _INSTANCE.finditer(block):
+        if block[at : m.start()].strip():
+            return text
+        entities[int(m.group(1))] = m.group(2)
+        at = m.end()
+    if block[at:].strip() or any(i < start for i in entities):
+        return text
+    for m in _TOKEN.finditer(head[head.find("DATA;") :]):
+        if m.group(1) and int(m.group(1)) >= start:
+            return text
+
+    def refs(i: int) -> list[int]:
+        return [int(g) for g in _TOKEN.findall(entities[i]) if g and int(g) in entities]
+
+    def expanded(i: int, seen: tuple = ()) -> str:
+        if i in seen:
+            return "#?"
+        return _TOKEN.sub(
+            lambda m: (
+                "{" + expanded(int(m.group(1)), (*seen, i)) + "}"
+                if m.group(1) and int(m.group(1)) in entities
+                else m.group(0)
+            ),
+            entities[i],
+        )
+
+    roots = [i for i, body in entities.items() if body.lstrip().startswith("MECHANICAL_DESIGN")]
+    order: dict[int, int] = {}
+
+    def visit(i: int) -> None:
+        if i not in order:
+            order[i] = start + len(order)
+            for j in refs(i):
+                visit(j)
+
+    for root in sorted(roots, key=expanded):
+        visit(root)
+    if len(order) != len(entities):
+        return text
+    renumbered = {
+        order[i]: _TOKEN.sub(
+            lambda m: (
+                f"#{order[int(m.group(1))]}"
+                if m.group(1) and int(m.group(1)) in order
+                else m.group(0)
+            ),
+            re.sub(rf"({_STRING})|\s*\n\s*", lambda m: m.group(1) or "", body),
+        )
+        for i, body in entities.items()
+    }
+    lines = "".join(_wrapped(f"#{i} = {renumbered[i]};") for i in sorted(renumbered))
+    return head + lines + tail
+
+
+def _wrapped(line: str, width: int = 72) -> str:
+    """One instance on lines of at most ``width`` characters where it can be done, broken
+    after a comma outside strings and continued with an indent (like OCCT's own writer)."""
+    out, current, at = [], "", 0
+    pieces = []  # the line cut just after each comma outside a string
+    for m in re.finditer(rf"{_STRING}|,", line):
+        if m.group(0) == ",":
+            pieces.append(line[at : m.end()])
+            at = m.end()
+    pieces.append(line[at:])
+    for piece in pieces:
+        if current and len(current) + len(piece) > width:
+            out.append(current)
+            current = "  "
+        current += piece
+    out.append(current)
+    return "\n".join(out) + "\n"
 
 
 def read_step(path: Path) -> dict[str, float]:

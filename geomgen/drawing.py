@@ -13,8 +13,9 @@ text), ``corner-point-WR1`` (a dot on the point), ``ref-origin-plan``, ``ref-x1-
 ``ref-y1-plan`` (invisible markers at the datum and 1 m along two axes, one set per view;
 matplotlib leaves out a marker that falls off the paper),
 ``table-WR1-x``, ``dim-tail-arm-horizontal_tail``, ``hinge-aileron-right``, ``title-date``...
-Output is deterministic: SVG ids are salted with a fixed string and no date is written, so two
-runs give byte-identical files. matplotlib is imported only when a sheet is drawn.
+Output is deterministic: SVG ids are salted with a fixed string and the only date written is
+:func:`geomgen.stamp.output_time` of the design (SVG ``dc:date``, PNG "Creation Time"), never the
+clock, so two runs give byte-identical files. matplotlib is imported only when a sheet is drawn.
 """
 
 from __future__ import annotations
@@ -22,12 +23,14 @@ from __future__ import annotations
 import math
 import textwrap
 from dataclasses import dataclass, field
+from email.utils import format_datetime
 from pathlib import Path
 from typing import Any
 
 from . import __version__
 from .layout import PART_NAMES, CornerLabel, Layout, SurfaceLayout, corner_labels, place
 from .report import CAUTION
+from .stamp import output_time
 from .units import to_output
 
 Point = tuple[float, float, float]
@@ -386,8 +389,11 @@ def three_view(layout: Layout, svg_path: Path, png_path: Path, units: str = "si"
         sheet = _Sheet(ax, patches)
         _draw(sheet, layout, units)
         title = f"{layout.sizing.design.title}: three-view"
-        fig.savefig(svg_path, format="svg", metadata={"Date": None, "Title": title})
-        fig.savefig(png_path, format="png", dpi=DPI, metadata={"Title": title})
+        when = output_time(layout.sizing.design)
+        fig.savefig(svg_path, format="svg", metadata={"Date": when.isoformat(), "Title": title})
+        # "Creation Time" is a keyword of the PNG specification (tEXt chunk), RFC 1123 style
+        png_meta = {"Title": title, "Creation Time": format_datetime(when, usegmt=True)}
+        fig.savefig(png_path, format="png", dpi=DPI, metadata=png_meta)
 
 
 def _length_text(value_si: float, units: str, digits: int = 3) -> str:

@@ -113,9 +113,15 @@ def run_build(
                 path="--only",
             )
     from .cache import Cache, key_of
+    from .stamp import output_time
 
     build_key = key_of(
-        "build", design_path.read_bytes(), _section_data(layout, dirs), sorted(only or ()), units
+        "build",
+        design_path.read_bytes(),
+        _section_data(layout, dirs),
+        sorted(only or ()),
+        units,
+        output_time(d).isoformat(),  # SOURCE_DATE_EPOCH changes the stamps in the files
     )
     target = out_root / d.name
     if not fresh and _unchanged(target, build_key):
@@ -141,7 +147,9 @@ def run_build(
         write_template_pdf(layout, folder.path("templates.pdf"), dirs)
         stage("wrote the reports, drawings, DXF files and 1:1 templates")
         step_path = folder.path(f"{d.name}.step")
-        cad.write_step(parts, step_path, d.name)
+        from .stamp import output_time
+
+        cad.write_step(parts, step_path, d.name, when=output_time(d))
         stage(f"wrote {step_path.name}")
         meshes = {}
         for p in parts:

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import textwrap
+import uuid
 from pathlib import Path
 
 import numpy as np
@@ -24,6 +25,7 @@ from .errors import GeometryError
 from .fuselage import expand, loft_sections
 from .layout import PART_NAMES, Layout, SurfaceLayout, corner_labels, place
 from .report import CAUTION, SURFACE_TITLES
+from .stamp import output_time
 from .templates import FormerTemplate, SectionTemplate, former_templates, section_templates
 
 #: Layers of the plan view and planform drawings: name -> (ACI colour, line type).
@@ -73,7 +75,7 @@ def _document(ltscale: float, layers: dict | None = None):
     return doc
 
 
-def _save(doc, path: Path, what: str) -> Path:
+def _save(doc, path: Path, what: str, layout: Layout) -> Path:
     auditor = doc.audit()
     if auditor.has_errors:
         problems = "; ".join(str(e.message) for e in auditor.errors[:3])
@@ -81,8 +83,57 @@ def _save(doc, path: Path, what: str) -> Path:
             f"the DXF does not pass its audit: {problems}", part=what, operation="DXF export"
         )
     path.parent.mkdir(parents=True, exist_ok=True)
+    _stamp(doc, output_time(layout.sizing.design), f"{layout.sizing.design.name}/{path.name}")
     doc.saveas(path)
     return path
+
+
+#: namespace of the drawings' GUIDs (uuid5 of the drawing's name and date: same in, same out)
+_GUIDS = uuid.UUID("5d0b8a54-7c1e-5f3a-9e26-41b7c0d9e8f3")
+
+
+def _stamp(doc, when, name: str) -> None:
+    """Give the drawing ``when`` (stamp.output_time) in place of the clock, and GUIDs derived
+    from ``name`` and ``when`` in place of random ones, so the same layout gives the same bytes.
+
+    ezdxf (1.4) stamps $TDCREATE, its "created by" note and a random $FINGERPRINTGUID when the
+    document is made, and $TDUPDATE, its "written by" note and a random $VERSIONGUID every
+    time it is written (``Drawing._update_metadata``, run by ``Drawing.write``); the second
+    set is put right after that step, by wrapping it for this one document. The same step
+    puts the CLASSES section in a stable order: ezdxf appends a class for each entity type in
+    use by iterating over a set of names, whose order changes with Python's string hashing
+    (measured: two ``geomgen size`` runs swapped ACDBPLACEHOLDER and LAYOUT); those classes
+    are sorted by name after the ones ezdxf always writes, in ezdxf's order."""
+    from collections import OrderedDict
+
+    import ezdxf
+    from ezdxf.sections.classes import REQ_R2004, REQUIRED_CLASSES
+    from ezdxf.tools.juliandate import juliandate
+
+    day = juliandate(when.replace(tzinfo=None))  # ezdxf takes a naive date; this one is UTC
+    note = f"{ezdxf.__version__} @ {when.isoformat()}"
+
+    def guid(kind: str) -> str:
+        return "{" + str(uuid.uuid5(_GUIDS, f"{kind} {name} {when.isoformat()}")).upper() + "}"
+
+    meta = doc.ezdxf_metadata()
+    meta["CREATED_BY_EZDXF"] = note
+    doc.header["$TDCREATE"] = doc.header["$TDUCREATE"] = day
+    doc.header["$FINGERPRINTGUID"] = guid("fingerprint")
+    update = doc._update_metadata
+
+    def stamped() -> None:
+        update()
+        always = REQUIRED_CLASSES.get(doc.dxfversion, REQ_R2004)
+        classes = doc.classes.classes  # (name, C++ class name) -> class, in output order
+        first = [k for k in classes if k[0] in always]
+        rest = sorted(k for k in classes if k[0] not in always)
+        doc.classes.classes = OrderedDict((k, classes[k]) for k in [*first, *rest])
+        doc.ezdxf_metadata()["WRITTEN_BY_EZDXF"] = note
+        doc.header["$TDUPDATE"] = doc.header["$TDUUPDATE"] = day
+        doc.header["$VERSIONGUID"] = guid("version")
+
+    doc._update_metadata = stamped
 
 
 def _text(msp, text: str, at, height: float, layer: str, align: str = "left", colour=None):
@@ -270,7 +321,7 @@ def write_plan_dxf(layout: Layout, path: str | Path) -> Path:
         _text(msp, line, (x_min, y), size, "labels")
         y -= 2.5 * h
     _caution(msp, (x_min, y), 0.8 * h, x_max - x_min)
-    return _save(doc, path, "plan view")
+    return _save(doc, path, "plan view", layout)
 
 
 # --- planforms ---------------------------------------------------------------------------------
@@ -377,7 +428,7 @@ def _write_planform(layout: Layout, sl: SurfaceLayout, keys, folder: Path) -> Pa
         y -= 2.2 * h
     width = max(p[0] for p in outline) - x0
     _caution(msp, (x0, y), 0.8 * h, width)
-    return _save(doc, folder / f"{PART_NAMES[sl.key]}-planform.dxf", f"{sl.key} planform")
+    return _save(doc, folder / f"{PART_NAMES[sl.key]}-planform.dxf", f"{sl.key} planform", layout)
 
 
 # --- templates ---------------------------------------------------------------------------------
@@ -428,7 +479,7 @@ def write_template_dxf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     _caution(msp, (0.0, top + 3 * gap - 24.0), 3.5, caution_width)
     if formers:
         _draw_formers(msp, formers, caution_width + 3 * gap, gap)
-    return _save(doc, path, "section templates")
+    return _save(doc, path, "section templates", layout)
 
 
 def _draw_formers(msp, formers: tuple[FormerTemplate, ...], x_start: float, gap: float) -> None:

@@ -35,6 +35,7 @@ from .layout import PART_NAMES, Layout, SurfaceLayout
 from .report import CAUTION
 from .sections import unit_section
 from .sizing import SurfaceSizing
+from .stamp import output_time
 
 #: Paper sizes, portrait (mm): ISO 216 A4 and ANSI Letter (8.5 in x 11 in, 25.4 mm per inch).
 PAPER_MM = {"A4": (210.0, 297.0), "Letter": (215.9, 279.4)}
@@ -683,7 +684,8 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     A template larger than a page's drawing area is tiled over several pages that overlap by
     ``OVERLAP``; crosses in each overlap, labelled with their drawing position, show on both
     pages. Every page carries a 100 mm check bar, its label (template, tile i of n) and the
-    caution. Output is deterministic (no creation date)."""
+    caution. Output is deterministic: the PDF's creation and modification dates are
+    :func:`geomgen.stamp.output_time` of the design, never the clock."""
     import matplotlib
     from matplotlib.backends.backend_pdf import PdfPages
 
@@ -712,7 +714,8 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
         "Title": f"{design.title}: {'section and former' if formers else 'section'} templates"
         " (1:1)",
         "Creator": "geomgen",
-        "CreationDate": None,
+        "CreationDate": output_time(design),
+        "ModDate": output_time(design),
     }
     with matplotlib.rc_context(rc), PdfPages(path, metadata=metadata) as pdf:
         sheet = _Sheet(design.title, paper, (width, height), region)
