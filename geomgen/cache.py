@@ -28,6 +28,9 @@ import numpy as np
 from . import __version__
 
 MANIFEST = "manifest.json"
+#: a temporary entry folder older than this (s) was left by a killed run (SIGKILL, power
+#: loss) and is removed; a younger one may belong to a build running beside this one
+STALE_TEMPORARY_AGE = 3600.0
 
 
 def versions() -> dict[str, str]:
@@ -126,6 +129,7 @@ class Cache:
         and is renamed into place (an entry already there is replaced)."""
         final = self.folder(key)
         final.parent.mkdir(parents=True, exist_ok=True)
+        _remove_stale_temporaries(final.parent)
         temp = Path(tempfile.mkdtemp(prefix=f".{key[:12]}.", dir=final.parent))
         try:
             write(temp)
@@ -141,3 +145,16 @@ class Cache:
             shutil.rmtree(temp, ignore_errors=True)
             raise
         return final
+
+
+def _remove_stale_temporaries(shard: Path) -> None:
+    """Remove temporary entry folders (names starting with '.') a killed run left behind."""
+    import time
+
+    now = time.time()
+    for p in shard.glob(".*"):
+        try:
+            if p.is_dir() and now - p.stat().st_mtime > STALE_TEMPORARY_AGE:
+                shutil.rmtree(p, ignore_errors=True)
+        except OSError:
+            pass

@@ -360,9 +360,7 @@ def _deflect(
 # --- the build ------------------------------------------------------------------------------
 
 
-def build(
-    layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=None
-) -> Build:
+def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=None) -> Build:
     """Loft every surface side, cut its control surfaces free, deflect them, and loft the
     fuselage when there is one; ``only`` limits the build to the named parts' surfaces (part
     names as in the report)."""

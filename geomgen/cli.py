@@ -106,8 +106,33 @@ def _parser() -> argparse.ArgumentParser:
     return p
 
 
+def _terminate_as_interrupt() -> None:
+    """SIGTERM ends a run like Ctrl-C (exit 130): Python's default would end the process at
+    once, skipping the cleanup of temporary output and cache folders. Later SIGTERMs are
+    ignored while that cleanup runs; child processes (sweep workers) keep the default."""
+    import os
+    import signal
+
+    owner = os.getpid()
+
+    def handler(signum, frame):
+        if os.getpid() != owner:  # a forked worker: die as SIGTERM would have it
+            signal.signal(signum, signal.SIG_DFL)
+            os.kill(os.getpid(), signum)
+            return
+        signal.signal(signum, signal.SIG_IGN)
+        raise KeyboardInterrupt
+
+    import threading
+
+    if threading.current_thread() is threading.main_thread():  # only it may set handlers
+        signal.signal(signal.SIGTERM, handler)
+
+
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
+    if argv is None:  # run as the command (tests call main with arguments, in-process)
+        _terminate_as_interrupt()
     try:
         if args.command == "schema":
             from .design import json_schema

@@ -33,6 +33,9 @@ from .fields import (
 MAX_DESIGN_BYTES = 1_000_000
 #: Design files holding more values than this (after YAML aliases are expanded) are refused.
 MAX_DESIGN_VALUES = 100_000
+#: Design files nesting lists or mappings deeper than this are refused (the deepest key path
+#: of a valid design, model.tunnel.speed or fuselage.stations[i].x, is 3 or 4 levels).
+MAX_DESIGN_DEPTH = 32
 
 DEG = math.pi / 180.0
 
@@ -1089,12 +1092,15 @@ def loads(text: str, source: str = "<design>") -> Design:
     """Validate and convert design text (YAML). See :func:`load`."""
     import yaml
 
+    _check_nesting(text, source)
     try:
         loader = _strict_safe_loader()(text)  # a SafeLoader subclass: no arbitrary objects
         try:
             document = loader.get_single_data()
         finally:
             loader.dispose()
+    except RecursionError:  # PyYAML composes nested nodes recursively
+        raise InputError(_too_deep(), source=source) from None
     except _DuplicateKey as err:
         raise InputError(str(err), source=source) from None
     except yaml.YAMLError as err:
@@ -1103,6 +1109,31 @@ def loads(text: str, source: str = "<design>") -> Design:
         problem = getattr(err, "problem", None) or "not valid YAML"
         raise InputError(f"{where}malformed YAML ({problem})", source=source) from None
     return from_mapping(document, source=source)
+
+
+def _too_deep() -> str:
+    return (
+        f"nests lists or mappings more than {MAX_DESIGN_DEPTH} levels deep; a design file "
+        "needs at most 4"
+    )
+
+
+def _check_nesting(text: str, source: str) -> None:
+    """Refuse deep nesting before the YAML composer recurses into it (a RecursionError):
+    the depth is counted on the parser's events, which come without recursion."""
+    import yaml
+
+    depth = 0
+    try:
+        for event in yaml.parse(text, Loader=yaml.SafeLoader):
+            if isinstance(event, (yaml.SequenceStartEvent, yaml.MappingStartEvent)):
+                depth += 1
+                if depth > MAX_DESIGN_DEPTH + 1:  # + 1: the document's own mapping
+                    raise InputError(_too_deep(), source=source)
+            elif isinstance(event, (yaml.SequenceEndEvent, yaml.MappingEndEvent)):
+                depth -= 1
+    except yaml.YAMLError:
+        return  # the loader reports malformed YAML with its line and column
 
 
 class _DuplicateKey(ValueError):
@@ -1189,11 +1220,13 @@ def _validate_structure(document: dict[str, Any], source: str) -> None:
     raise InputError(error.message.splitlines()[0][:200], source=source, path=path or None)
 
 
-def _plain(value: Any, budget: list[int], source: str) -> Any:
+def _plain(value: Any, budget: list[int], source: str, depth: int = 0) -> Any:
     """YAML may give dates and other types; make a JSON-like copy for the checks.
 
     ``budget`` holds how many more values may be copied (YAML aliases can make a small file
-    expand into a huge tree)."""
+    expand into a huge tree); ``depth`` is the nesting level (refused past the limit)."""
+    if depth > MAX_DESIGN_DEPTH:
+        raise InputError(_too_deep(), source=source)
     budget[0] -= 1
     if budget[0] < 0:
         raise InputError(
@@ -1202,9 +1235,9 @@ def _plain(value: Any, budget: list[int], source: str) -> Any:
             source=source,
         )
     if isinstance(value, dict):
-        return {str(k): _plain(v, budget, source) for k, v in value.items()}
+        return {str(k): _plain(v, budget, source, depth + 1) for k, v in value.items()}
     if isinstance(value, list):
-        return [_plain(v, budget, source) for v in value]
+        return [_plain(v, budget, source, depth + 1) for v in value]
     if value is None or isinstance(value, (str, int, float, bool)):
         return value
     return json.loads(json.dumps(value, default=str))

@@ -207,11 +207,50 @@ def lay_out(sizing: Sizing, airfoil_dirs: tuple = ()) -> Layout:
     source = sizing.design.source
     return Layout(
         sizing=sizing,
-        surfaces=tuple(_surface(ss, airfoil_dirs, source) for ss in sizing.surfaces),
+        surfaces=tuple(
+            _surface(ss, airfoil_dirs, source, sizing.design.solids.te_thickness)
+            for ss in sizing.surfaces
+        ),
     )
 
 
-def _surface(ss: SurfaceSizing, dirs: tuple, source: str) -> SurfaceLayout:
+#: a hinge line lies at least this chord fraction behind the leading edge (the moving part's
+#: rounded nose and the fixed part's cove need the section's thickness around it) ...
+MIN_HINGE_FRACTION = 0.1
+#: ... and leaves the moving part at least this fraction of the local chord
+MIN_MOVING_FRACTION = 0.05
+#: ... and at least this many times the minimum trailing-edge thickness (the thickened
+#: trailing edge is blended in over the aft chord, so it must lie well inside the moving part)
+MIN_MOVING_TE_RATIO = 4.0
+
+
+def _check_hinge_room(
+    s: float, f: float, chord: float, te_thickness: float, path: str, source: str
+) -> None:
+    """The hinge at chord fraction f of a local chord leaves room for both parts."""
+    if f < MIN_HINGE_FRACTION:
+        raise InputError(
+            f"the hinge line lies too close to the leading edge: local chord fraction {f:.3f} "
+            f"at {s:.3f} m from the root (at least {MIN_HINGE_FRACTION:g})",
+            source=source,
+            path=path,
+        )
+    aft = (1.0 - f) * chord
+    need = max(MIN_MOVING_FRACTION * chord, MIN_MOVING_TE_RATIO * te_thickness)
+    if aft < need:
+        raise InputError(
+            f"leaves the moving part only {aft * 1000:.1f} mm of chord at {s:.3f} m from the "
+            f"root; it needs at least {need * 1000:.1f} mm ({MIN_MOVING_FRACTION:g} of the "
+            f"local chord and {MIN_MOVING_TE_RATIO:g} x solids.te_thickness): move the hinge "
+            f"forward (local chord fraction {f:.4g}, at most {1 - need / chord:.3f} here)",
+            source=source,
+            path=path,
+        )
+
+
+def _surface(
+    ss: SurfaceSizing, dirs: tuple, source: str, te_thickness: float = 0.0
+) -> SurfaceLayout:
     pf = ss.planform
     sides = ("right", "left") if pf.symmetric else ("centre",)
     corners = []
@@ -246,6 +285,8 @@ def _surface(ss: SurfaceSizing, dirs: tuple, source: str) -> SurfaceLayout:
                     source=source,
                     path=path,
                 )
+        for s, f in zip(stations, fractions, strict=True):
+            _check_hinge_room(s, f, pf.at(s)[1], te_thickness, path, source)
         _check_hinge_is_straight(ss, stations, fractions, path, source)
         area = _area_aft(ss, stations, fractions)
         hinge_kind = "common" if spec.common_hinge else spec.hinge

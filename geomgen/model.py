@@ -31,6 +31,9 @@ LENGTH_MARGIN = 12.0
 JOINT_CLEARANCE = 4.0
 #: dowel holes run this much (mm) deeper than half the dowel on each side
 DOWEL_CLEARANCE = 0.5
+#: the most pieces a model may be printed in (fixed pieces and one piece per printed
+#: deflection); a scale or printer needing more is refused before any solid is built
+MAX_MODEL_PIECES = 200
 #: chord fractions tried for dowels
 _DOWEL_FRACTIONS = np.linspace(0.06, 0.80, 75)
 
@@ -128,18 +131,65 @@ def model_scale(layout: Layout, spec: ModelSpec, scale: float | None, span: floa
     d = layout.sizing.design
     wing_span = layout.sizing.wing.planform.span
     if scale is not None:
-        return scale
-    if span is not None:
-        return span / wing_span
-    if spec.scale is not None:
-        return spec.scale
-    if spec.span is not None:
-        return spec.span / wing_span
-    raise InputError(
-        "give the model's scale (1:N) or span, in the design or with --scale / --span",
-        source=d.source,
-        path="model.scale",
-    )
+        k, path = scale, "--scale"
+    elif span is not None:
+        k, path = span / wing_span, "--span"
+    elif spec.scale is not None:
+        k, path = spec.scale, "model.scale"
+    elif spec.span is not None:
+        k, path = spec.span / wing_span, "model.span"
+    else:
+        raise InputError(
+            "give the model's scale (1:N) or span, in the design or with --scale / --span",
+            source=d.source,
+            path="model.scale",
+        )
+    _check_pieces(layout, spec, k, path)
+    return k
+
+
+def piece_estimate(layout: Layout, spec: ModelSpec, k: float) -> int:
+    """Pieces a model at scale k needs, from the layout alone (no CAD): every fixed surface
+    side and the body in the fewest pieces the printer's longest side allows, plus one piece
+    per printed deflection of each control surface."""
+    f = 1000.0 * k
+    longest = max(spec.build_volume) * 1000.0 - LENGTH_MARGIN
+    count = len(deflections(layout, spec))
+    for sl in layout.surfaces:
+        length = (sl.sizing.planform.semi_span - sl.mount_s) * f
+        count += len(sl.sides) * max(1, math.ceil(length / longest - 1e-9))
+    if layout.body is not None:
+        length = (layout.body[-1].x - layout.body[0].x) * f
+        count += max(1, math.ceil(length / longest - 1e-9))
+    return count
+
+
+def _check_pieces(layout: Layout, spec: ModelSpec, k: float, path: str) -> None:
+    """Refuse, before any solid is built, a model of absurdly many pieces or one whose
+    surface roots do not fit the printer."""
+    count = piece_estimate(layout, spec, k)
+    if count > MAX_MODEL_PIECES:
+        raise InputError(
+            f"the model at 1:{1 / k:.4g} would be printed in about {count} pieces on a "
+            f"{max(spec.build_volume) * 1000:.0f} mm printer; at most {MAX_MODEL_PIECES} are "
+            f"made: choose a smaller scale or a larger model.build_volume",
+            source=layout.sizing.design.source,
+            path=path,
+        )
+    for sl in layout.surfaces:
+        for side in sl.sides:
+            _check_root_fits(sl.sizing.planform.root_chord, fixed_part_name(sl.key, side), spec, k)
+
+
+def _check_root_fits(root_chord: float, name: str, spec: ModelSpec, k: float) -> None:
+    wide = sorted(spec.build_volume)[1] * 1000.0
+    if root_chord * 1000.0 * k > wide:
+        raise GeometryError(
+            f"the root chord is {root_chord * 1000.0 * k:.0f} mm at this scale, more than the "
+            f"printer's {wide:.0f} mm",
+            part=name,
+            operation="plan pieces",
+        )
 
 
 def deflections(layout: Layout, spec: ModelSpec) -> tuple[Variant, ...]:
@@ -174,6 +224,12 @@ def plan_cuts(
     if length <= longest:
         return ()
     n = math.ceil(length / longest - 1e-9)
+    if n > MAX_MODEL_PIECES:
+        raise GeometryError(
+            f"{length:.0f} mm would need {n} pieces of at most {longest:.0f} mm; at most "
+            f"{MAX_MODEL_PIECES} are made",
+            operation="plan pieces",
+        )
     grid = np.linspace(start, end, 4001)[1:-1]
     allowed = grid[[all(not (a <= g <= b) for a, b in avoid) for g in grid]]
     if len(allowed) == 0:
@@ -191,6 +247,10 @@ def plan_cuts(
         reach = allowed[(allowed > at) & (allowed <= at + longest)]
         if len(reach) == 0:
             reach = grid[(grid > at) & (grid <= at + longest)]
+        if len(reach) == 0:  # pieces shorter than the station grid's step
+            raise GeometryError(
+                f"no cut station within {longest:.1f} mm of {at:.1f} mm", operation="plan pieces"
+            )
         at = float(reach.max())
         cuts.append(at)
     return tuple(cuts)
@@ -256,14 +316,7 @@ def surface_plan(
     name = fixed_part_name(sl.key, side)
     start, end = (sl.mount_s + offset) * f, (pf.semi_span + offset) * f
     longest = max(spec.build_volume) * 1000.0 - LENGTH_MARGIN
-    wide = sorted(spec.build_volume)[1] * 1000.0
-    if pf.root_chord * f > wide:
-        raise GeometryError(
-            f"the root chord is {pf.root_chord * f:.0f} mm at this scale, more than the "
-            f"printer's {wide:.0f} mm",
-            part=name,
-            operation="plan pieces",
-        )
+    _check_root_fits(pf.root_chord, name, spec, k)
     dowel, wall = spec.dowel_diameter * 1000.0, spec.min_wall * 1000.0
     key_reach = _key_reach(spec)
     avoid = []

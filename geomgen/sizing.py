@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from pathlib import Path
 
 from . import airfoils
 from .atmosphere import AtmosphereState, isa
@@ -163,6 +164,7 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
         achieved = tail_area * arm / (area * reference[t.key])
         sized[t.key] = _surface_sizing(t, pf, apex_x, achieved, arm, airfoil_dirs, design.source)
         _check_tail_clear_of_wing(sized[t.key], wing, design.source)
+    _check_te_thickness(design, [wing, *sized.values()])
     return Sizing(
         design=design,
         stall=stall,
@@ -171,6 +173,21 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
         vertical_tail=sized.get("vertical_tail"),
         tail_arm_rule=rule,
     )
+
+
+def _check_te_thickness(design: Design, surfaces: list[SurfaceSizing]) -> None:
+    """The minimum trailing-edge thickness is blended into every section: refuse one thicker
+    than airfoils.MAX_TE_GAP of the smallest chord (it would no longer be a trailing edge)."""
+    te = design.solids.te_thickness
+    chord, where = min((st.chord, s.key) for s in surfaces for st in s.planform.stations)
+    limit = airfoils.MAX_TE_GAP * chord
+    if te > limit:
+        raise InputError(
+            f"must be at most {airfoils.MAX_TE_GAP:g} of the smallest chord ({chord * 1000:.1f} "
+            f"mm, {where}), i.e. {limit * 1000:.2f} mm (got {te * 1000:g} mm)",
+            source=design.source,
+            path="solids.te_thickness",
+        )
 
 
 def _tail_cone_radii(design: Design) -> tuple[float, float]:
@@ -249,7 +266,9 @@ def _thickness(name: str, path: str, dirs: tuple, source: str) -> float:
     try:
         return airfoils.load(name, dirs).thickness
     except InputError as err:
-        raise InputError(err.detail, source=source, path=path) from None
+        # name the coordinate file when the fault is in it
+        where = f" ({err.source})" if err.source and Path(err.source).is_file() else ""
+        raise InputError(err.detail + where, source=source, path=path) from None
 
 
 def _check_tail_clear_of_wing(tail: SurfaceSizing, wing: SurfaceSizing, source: str) -> None:

@@ -7,6 +7,7 @@ the key path, say what is allowed, and nothing may be written to the output fold
 
 from __future__ import annotations
 
+import os
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
@@ -109,6 +110,69 @@ def oversized(folder: Path) -> Path:
     path.write_text(DEMO_TEXT + padding, encoding="utf-8")
     assert path.stat().st_size > design.MAX_DESIGN_BYTES
     return path
+
+
+def oversized_malformed(folder: Path) -> Path:
+    """Over the size limit and not YAML at all: the size is refused before any parsing."""
+    path = folder / "huge-design.yaml"
+    path.write_text("wing: [unclosed\n" + "x" * design.MAX_DESIGN_BYTES, encoding="utf-8")
+    return path
+
+
+def with_section_file(text: str | bytes, key: str = "wing.root_airfoil") -> Callable[[Path], Path]:
+    """The demo with one section read from a coordinate file written beside the design."""
+
+    def build(folder: Path) -> Path:
+        section = folder / "bad-section.dat"
+        if isinstance(text, bytes):
+            section.write_bytes(text)
+        else:
+            section.write_text(text, encoding="utf-8")
+        return from_demo(put(key, section.name))(folder)
+
+    return build
+
+
+def _pairs(points: list[tuple[float, float]]) -> str:
+    return "made-up section\n" + "".join(f"{x:.4f} {y:.4f}\n" for x, y in points)
+
+
+#: a section outline that stops short: the lower surface ends at mid-chord
+UNCLOSED_SECTION = _pairs(
+    [(1 - i / 20, 0.06 * (1 - i / 20)) for i in range(21)] + [(i / 20, -0.04) for i in range(1, 11)]
+)
+#: nine points: one short of airfoils.MIN_FILE_POINTS
+TOO_FEW_POINTS = _pairs(
+    [(1, 0), (0.75, 0.04), (0.5, 0.06), (0.25, 0.05), (0, 0)]
+    + [(0.25, -0.04), (0.5, -0.04), (0.75, -0.02), (1, 0.001)]
+)
+#: upper and lower surfaces swap sides twice: a figure-of-eight outline
+CROSSING_SECTION = _pairs(
+    [(1, 0), (0.75, 0.05), (0.5, -0.05), (0.25, 0.05), (0, 0), (0.25, -0.05), (0.5, 0.05)]
+    + [(0.75, -0.05), (0.9, 0.01), (0.95, 0.02), (1, 0.001)]
+)
+
+
+def _replace_fuselage(text: str) -> str:
+    """The demo with its fuselage section replaced by ``text`` (YAML, top level)."""
+    start, end = DEMO_TEXT.index("fuselage:"), DEMO_TEXT.index("model:")
+    return DEMO_TEXT[:start] + text + DEMO_TEXT[end:]
+
+
+#: 100 000 fuselage stations in 0.4 MB, written with one alias each
+ALIAS_STATIONS = _replace_fuselage(
+    'station: &st {x: "1 m", width: "0.5 m", height: "0.5 m"}\n'
+    "fuselage:\n  stations: [" + ", ".join(["*st"] * 100_000) + "]\n"
+)
+
+#: mappings nested through aliases: 6 levels of 10 keys, 10^6 values
+ALIAS_MAPPING_BOMB = (
+    "m0: &m0 {a: x, b: x, c: x, d: x, e: x, f: x, g: x, h: x, i: x, j: x}\n"
+    + "".join(
+        f"m{i}: &m{i} {{" + ", ".join(f"{k}: *m{i - 1}" for k in "abcdefghij") + "}\n"
+        for i in range(1, 6)
+    )
+)
 
 
 #: 400 bytes of YAML whose aliases expand to 10^9 strings
@@ -367,6 +431,302 @@ CASES = [
         "wing.tip_airfoil",
         "not found",
     ),
+    # === hostile and malformed designs ===========================================================
+    # --- the file itself: tags, aliases, nesting, size ---
+    Case(
+        "custom-tag-on-scalar",
+        raw(DEMO_TEXT.replace("name: veyra-t2", "name: !aircraft veyra-t2")),
+        None,
+        "malformed YAML",
+    ),
+    Case(
+        "custom-tag-on-mapping",
+        raw(DEMO_TEXT.replace("\nwing:\n", "\nwing: !surface\n", 1)),
+        None,
+        "could not determine a constructor",
+    ),
+    Case(
+        "alias-mapping-expansion",
+        raw(ALIAS_MAPPING_BOMB),
+        None,
+        f"more than {design.MAX_DESIGN_VALUES}",
+    ),
+    Case(
+        "10000-nested-lists",
+        raw("name: " + "[" * 10_000 + "]" * 10_000 + "\n"),
+        None,
+        f"more than {design.MAX_DESIGN_DEPTH} levels deep",
+    ),
+    Case(
+        "10000-nested-mappings",
+        raw("name: " + "{a: " * 10_000 + "1" + "}" * 10_000 + "\n"),
+        None,
+        f"more than {design.MAX_DESIGN_DEPTH} levels deep",
+    ),
+    Case(
+        "200-nested-block-mappings",
+        raw(DEMO_TEXT + "notes:\n" + "".join("  " * i + "k:\n" for i in range(1, 200))),
+        None,
+        f"more than {design.MAX_DESIGN_DEPTH} levels deep",
+    ),
+    Case(
+        "over-size-limit-refused-before-parsing",
+        oversized_malformed,
+        None,
+        f"at most {design.MAX_DESIGN_BYTES}",
+    ),
+    # --- wrong types ---
+    Case("wing-is-a-list", from_demo(put("wing", [1, 2])), "wing", "must be a mapping"),
+    Case(
+        "requirements-is-text",
+        from_demo(put("requirements", "fast and light")),
+        "requirements",
+        "must be a mapping",
+    ),
+    Case(
+        "mapping-where-a-number-goes",
+        from_demo(put("wing.aspect_ratio", {"value": 7.8})),
+        "wing.aspect_ratio",
+        "plain number",
+    ),
+    Case(
+        "bool-where-a-quantity-goes",
+        from_demo(put("requirements.stall_speed", True)),
+        "requirements.stall_speed",
+        "with a unit of speed",
+    ),
+    Case(
+        "list-where-a-quantity-goes",
+        from_demo(put("wing.dihedral", ["2.5 deg"])),
+        "wing.dihedral",
+        "with a unit of angle",
+    ),
+    Case(
+        "bool-where-a-number-goes",
+        from_demo(put("wing.aspect_ratio", True)),
+        "wing.aspect_ratio",
+        "plain number",
+    ),
+    Case(
+        "number-where-text-goes",
+        from_demo(put("wing.root_airfoil", 2415)),
+        "wing.root_airfoil",
+        "must be text",
+    ),
+    Case("apex-is-a-list", from_demo(put("wing.apex", [1.55, 0.95])), "wing.apex", "mapping"),
+    Case(
+        "panels-is-a-mapping",
+        from_demo(put("wing.panels", {"span_fraction": 1.0})),
+        "wing.panels",
+        "must be a list",
+    ),
+    Case(
+        "controls-is-a-list",
+        from_demo(put("wing.controls", ["aileron", "flap"])),
+        "wing.controls",
+        "mapping",
+    ),
+    Case("key-is-a-number", raw(DEMO_TEXT + "7: seven\n"), "7", "unknown key"),
+    # --- NaN and infinity ---
+    Case(
+        "aspect-ratio-inf",
+        raw(DEMO_TEXT.replace("aspect_ratio: 7.8", "aspect_ratio: .inf")),
+        "wing.aspect_ratio",
+        "[0.1, 40]",
+    ),
+    Case(
+        "cl-max-minus-inf",
+        raw(DEMO_TEXT.replace("cl_max: 1.7", "cl_max: -.inf")),
+        "requirements.cl_max",
+        "[0.1, 5]",
+    ),
+    Case(
+        "stall-speed-nan-kn",
+        from_demo(put("requirements.stall_speed", "nan kn")),
+        "requirements.stall_speed",
+        "number with a unit of speed",
+    ),
+    Case(
+        "altitude-inf-m",
+        from_demo(put("requirements.altitude", "inf m")),
+        "requirements.altitude",
+        "number with a unit of length",
+    ),
+    Case(
+        "area-overflows-to-inf",
+        from_demo(put("wing.area", "1e400 m^2")),
+        "wing.area",
+        "finite",
+    ),
+    Case(
+        "hinge-at-nan",
+        raw(DEMO_TEXT.replace("hinge_at: 0.6\n", "hinge_at: .nan\n")),
+        "vertical_tail.controls.rudder.hinge_at",
+        "(0, 1)",
+    ),
+    # --- units pint knows that do not fit ---
+    Case("area-in-m", from_demo(put("wing.area", "12 m")), "wing.area", "must be a area"),
+    Case("sweep-in-m", from_demo(put("wing.sweep", "5 m")), "wing.sweep", "must be an angle"),
+    Case("twist-in-kg", from_demo(put("wing.twist", "-2 kg")), "wing.twist", "must be an angle"),
+    Case(
+        "gross-weight-in-m-per-s",
+        from_demo(put("requirements.gross_weight", "650 m/s")),
+        "requirements.gross_weight",
+        "must be a weight",
+    ),
+    Case(
+        "tail-arm-in-m2",
+        from_demo(put("vertical_tail.tail_arm", "4 m^2")),
+        "vertical_tail.tail_arm",
+        "must be a length",
+    ),
+    Case(
+        "te-thickness-in-deg",
+        from_demo(put("solids", {"te_thickness": "0.5 deg"})),
+        "solids.te_thickness",
+        "must be a length",
+    ),
+    Case(
+        "material-density-in-kg",
+        from_demo(put("model.material_density", "1.24 kg")),
+        "model.material_density",
+        "must be a density",
+    ),
+    # --- legal alone, inconsistent together ---
+    Case(
+        "flap-contains-aileron",
+        from_demo(
+            both(
+                put("wing.controls.flap.span_start", 0.46), put("wing.controls.flap.span_end", 0.99)
+            )
+        ),
+        "wing.controls.flap.span_start",
+        "may not share span",
+    ),
+    Case(
+        "hinge-at-0.999",
+        from_demo(put("vertical_tail.controls.rudder.hinge_at", 0.999)),
+        "vertical_tail.controls.rudder.hinge_at",
+        "leaves the moving part only",
+    ),
+    Case(
+        "hinge-behind-thick-trailing-edge",
+        from_demo(
+            both(
+                put("vertical_tail.controls.rudder.hinge_at", 0.93),
+                put("solids", {"te_thickness": "15 mm"}),
+            )
+        ),
+        "vertical_tail.controls.rudder.hinge_at",
+        "4 x solids.te_thickness",
+    ),
+    Case(
+        "hinge-at-the-leading-edge",
+        from_demo(put("vertical_tail.controls.rudder.hinge_at", 0.05)),
+        "vertical_tail.controls.rudder.hinge_at",
+        "too close to the leading edge",
+    ),
+    Case(
+        "te-thickness-beyond-the-smallest-chord",
+        from_demo(put("solids", {"te_thickness": "20 mm"})),
+        "solids.te_thickness",
+        "of the smallest chord",
+    ),
+    Case("twist-89-deg", from_demo(put("wing.twist", "89 deg")), "wing.twist", "[-45, 45] deg"),
+    Case(
+        "panel-twist-minus-95-deg",
+        from_demo(put("wing.panels.1.twist", "-95 deg")),
+        "wing.panels[1].twist",
+        "[-45, 45] deg",
+    ),
+    Case(
+        "incidence-60-deg",
+        from_demo(put("horizontal_tail.incidence", "60 deg")),
+        "horizontal_tail.incidence",
+        "[-20, 20] deg",
+    ),
+    Case(
+        "fin-arm-shorter-than-wing-root-chord",
+        from_demo(put("vertical_tail.tail_arm", "1 m")),
+        "vertical_tail.tail_arm",
+        "longer tail arm",
+    ),
+    # --- section coordinate files ---
+    Case("section-file-empty", with_section_file(""), "wing.root_airfoil", "file is empty"),
+    Case(
+        "section-file-binary",
+        with_section_file(bytes(range(256)) * 8),
+        "wing.root_airfoil",
+        "not a text file",
+    ),
+    Case(
+        "section-file-unclosed",
+        with_section_file(UNCLOSED_SECTION, "horizontal_tail.root_airfoil"),
+        "horizontal_tail.root_airfoil",
+        "not closed",
+    ),
+    Case(
+        "section-file-crosses-itself",
+        with_section_file(CROSSING_SECTION, "wing.tip_airfoil"),
+        "wing.tip_airfoil",
+        "crosses itself",
+    ),
+    Case(
+        "section-file-too-few-points",
+        with_section_file(TOO_FEW_POINTS),
+        "wing.root_airfoil",
+        "at least 10 are needed",
+    ),
+    Case(
+        "section-file-infinite-coordinate",
+        with_section_file("made-up\n1 0\ninf 0\n"),
+        "wing.root_airfoil",
+        "finite numbers",
+    ),
+    # --- resource limits ---
+    Case(
+        "1000-fuselage-stations",
+        raw(
+            _replace_fuselage(
+                "fuselage:\n  stations:\n"
+                + "".join(
+                    f'    - {{x: "{i} mm", width: "0.5 m", height: "0.5 m"}}\n' for i in range(1000)
+                )
+            )
+        ),
+        "fuselage.stations",
+        "2 to 200 items",
+    ),
+    Case("100000-fuselage-stations-by-alias", raw(ALIAS_STATIONS), None, "more than 100000"),
+    Case(
+        "21-wing-panels",
+        from_demo(
+            put(
+                "wing.panels",
+                [{"span_fraction": (i + 1) / 21, "chord_ratio": 1.0} for i in range(21)],
+            )
+        ),
+        "wing.panels",
+        "1 to 20 items",
+    ),
+    Case(
+        "section-points-100000",
+        from_demo(put("solids", {"section_points": 100_000})),
+        "solids.section_points",
+        "[21, 301]",
+    ),
+    Case(
+        "tessellation-1e-9",
+        from_demo(put("solids", {"tessellation": 1e-9})),
+        "solids.tessellation",
+        "[1e-05, 0.01]",
+    ),
+    Case(
+        "tessellation-1-nm",
+        from_demo(put("solids", {"tessellation": "1 nm"})),
+        "solids.tessellation",
+        "plain number in [1e-05, 0.01]",
+    ),
 ]
 
 
@@ -400,3 +760,120 @@ def test_unquoted_yaml_date_is_accepted(tmp_path: Path) -> None:
     path.write_text(DEMO_TEXT.replace('date: "2026-12-01"', "date: 2026-12-01"), encoding="utf-8")
     assert "date: 2026-12-01\n" in path.read_text(encoding="utf-8")
     assert design.load(path).date == "2026-12-01"
+
+
+# --- output folders that cannot be written ------------------------------------------------------
+
+
+def _out_is_a_file(folder: Path) -> Path:
+    path = folder / "out"
+    path.write_text("a file, not a folder\n", encoding="utf-8")
+    return path
+
+
+def _target_is_a_file(folder: Path) -> Path:
+    """The design's own output folder (out/veyra-t2) is a file."""
+    (folder / "out").mkdir()
+    (folder / "out" / "veyra-t2").write_text("a file, not a folder\n", encoding="utf-8")
+    return folder / "out"
+
+
+def _not_writable(folder: Path) -> Path:
+    if os.geteuid() != 0:
+        locked = folder / "locked"
+        locked.mkdir()
+        locked.chmod(0o500)
+        return locked / "out"
+    # root writes through file modes; sysfs refuses new folders even to root
+    if not Path("/sys/kernel").is_dir():
+        pytest.skip("running as root without /sys: no folder is read-only here")
+    return Path("/sys/geomgen-test-out")
+
+
+@pytest.mark.parametrize(
+    "make_out",
+    [_out_is_a_file, _target_is_a_file, _not_writable],
+    ids=["out-is-a-file", "target-is-a-file", "out-not-writable"],
+)
+def test_unusable_output_folder_is_refused_in_one_line(
+    make_out: Callable[[Path], Path], tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    out = make_out(tmp_path)
+    before = sorted(p.relative_to(tmp_path) for p in tmp_path.rglob("*"))
+    try:
+        code = main(["size", str(DEMO), "--out", str(out), "--no-drawings"])
+    finally:
+        if out.parent.name == "locked":
+            out.parent.chmod(0o700)
+    captured = capsys.readouterr()
+    assert code == 2, captured.err
+    assert "Traceback" not in captured.err
+    lines = captured.err.splitlines()
+    assert len(lines) == 1, captured.err
+    assert lines[0].startswith(f"geomgen: error: {out}")
+    assert "output" in lines[0]
+    assert sorted(p.relative_to(tmp_path) for p in tmp_path.rglob("*")) == before
+
+
+# --- resource limits of geomgen model -----------------------------------------------------------
+
+
+def _model_design(folder: Path, model: dict[str, Any]) -> Path:
+    """The demo with its model section updated; a value None removes the key."""
+    doc = demo_document()
+    doc["model"].update(model)
+    doc["model"] = {k: v for k, v in doc["model"].items() if v is not None}
+    path = folder / "model-design.yaml"
+    path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
+    return path
+
+
+SMALL_PRINTER = {"build_volume": ["60 mm"] * 3}
+
+
+@pytest.mark.parametrize(
+    ("args", "model", "key"),
+    [
+        # 1:1 on a 60 mm printer: about 440 pieces (the wing halves alone need 107 each)
+        (["--scale", "1:1"], SMALL_PRINTER, "--scale"),
+        ([], {**SMALL_PRINTER, "scale": "1:1"}, "model.scale"),
+        ([], {**SMALL_PRINTER, "scale": None, "span": "5 m"}, "model.span"),
+    ],
+    ids=["scale-on-command-line", "scale-in-design", "span-in-design"],
+)
+def test_model_of_too_many_pieces_is_refused_up_front(
+    args: list[str], model: dict, key: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    from geomgen import model as mdl
+
+    path = _model_design(tmp_path, model)
+    out = tmp_path / "out"
+    assert main(["model", str(path), "--out", str(out), *args]) == 2
+    lines = capsys.readouterr().err.splitlines()
+    assert len(lines) == 1, lines
+    assert str(path) in lines[0] and f": {key}: " in lines[0], lines[0]
+    assert f"at most {mdl.MAX_MODEL_PIECES} are made" in lines[0]
+    assert not out.exists() or not any(out.iterdir())
+
+
+def test_model_at_full_size_is_refused_before_any_solid(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    """1:1 on the default 220 mm printer: about 104 pieces, within the limit, but the wing's
+    1.38 m root chord cannot be printed at all; refused before the solids are built."""
+    out = tmp_path / "out"
+    assert main(["model", str(DEMO), "--scale", "1:1", "--out", str(out)]) == 1
+    lines = capsys.readouterr().err.splitlines()
+    assert len(lines) == 1
+    assert "wing-right plan pieces: the root chord is 1382 mm" in lines[0], lines[0]
+    assert "more than the printer's 220 mm" in lines[0]
+    assert not out.exists() or not any(out.iterdir())
+
+
+def test_plan_cuts_refuses_absurd_piece_counts() -> None:
+    from geomgen import model as mdl
+    from geomgen.errors import GeometryError
+
+    assert len(mdl.plan_cuts(0.0, 1000.0, 208.0, [])) == 4  # ceil(1000 / 208) = 5 pieces
+    with pytest.raises(GeometryError, match=f"at most {mdl.MAX_MODEL_PIECES} are made"):
+        mdl.plan_cuts(0.0, 1_000_000.0, 8.0, [])
