@@ -625,7 +625,19 @@ def write_step(parts: Iterable[Part], path: Path, name: str, when: datetime | No
         raise GeometryError(str(err), part=name, operation="STEP export") from err
     text = Path(path).read_bytes().decode("latin-1")  # Part 21 files are 8-bit text
     text = _stable_presentation(_stamped_header(text, when or output_time(None), name))
-    Path(path).write_bytes(text.encode("latin-1"))
+    Path(path).write_bytes(_numbered_occurrences(text).encode("latin-1"))
+
+
+_OCCURRENCE = re.compile(r"(NEXT_ASSEMBLY_USAGE_OCCURRENCE\(\s*)'(\d+)'")
+
+
+def _numbered_occurrences(text: str) -> str:
+    """Number the assembly's part occurrences 1, 2, ... in file order: OCCT's writer takes
+    these ids from a counter that lives as long as the process, so a second export in one
+    process wrote '3', '4' where the first wrote '1', '2' (measured). The id is the
+    occurrence's own label (ISO 10303-44 product structure), not a reference."""
+    count = iter(range(1, 1 << 30))
+    return _OCCURRENCE.sub(lambda m: f"{m.group(1)}'{next(count)}'", text)
 
 
 # ISO 10303-21 (the STEP clear-text file): a string is '...' with '' for a quote inside; an
