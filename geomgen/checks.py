@@ -155,11 +155,16 @@ def surface_checks(build: cad.Build, dirs: tuple = ()) -> list[Check]:
                 )
             )
             aft_mesh = load_mesh(*cad.mesh_arrays(cb.aft_portion, deflection))
+            # seen along the sections' thickness direction (turned by incidence and twist):
+            # the hinge cut is square to the chord, so in plan view a surface set at an
+            # incidence shows its cut face, a strip t sin(i) wide (0.8 % of an aileron's area
+            # on a random design at -3 deg, measured)
+            chord_normal = cad._thickness_normal(sl, 0.5 * (c.s_start + c.s_end))
             out.append(
                 _rel(
                     "control area aft of the hinge vs report",
                     c.name,
-                    projected_area(aft_mesh, view),
+                    projected_area(aft_mesh, chord_normal),
                     c.area * MM**2,
                     t.projected_area,
                     "mm^2",

@@ -100,6 +100,29 @@ def superellipse_perimeter(a: float, b: float, n: float) -> float:
     return 4.0 * (graph_length(b, a) + graph_length(a, b))
 
 
+def superellipse_perimeters(a: np.ndarray, b: np.ndarray, n: float) -> np.ndarray:
+    """``superellipse_perimeter`` for arrays of semi-axes at one exponent, all at once (the
+    same quadrature, vectorised: the body's integrals call it at every grid point)."""
+    a = np.asarray(a, dtype=float)
+    b = np.asarray(b, dtype=float)
+    out = 4.0 * (a + b)  # degenerate sections: twice the flat length, as the scalar form
+    ok = (a > 0.0) & (b > 0.0)
+    if not np.any(ok):
+        return out
+    c = 2.0 ** (-1.0 / n)
+
+    def graph_length(p: np.ndarray, q: np.ndarray) -> np.ndarray:
+        edges = np.linspace(0.0, 1.0, 9)[None, :] * (c * p)[:, None]  # (N, 9)
+        lo, hi = edges[:, :-1, None], edges[:, 1:, None]  # (N, 8, 1)
+        v = 0.5 * (hi - lo) * _GL_NODES + 0.5 * (hi + lo)  # (N, 8, 64)
+        u = v / p[:, None, None]
+        slope = (q / p)[:, None, None] * (1.0 - u**n) ** (1.0 / n - 1.0) * u ** (n - 1.0)
+        return (0.5 * (hi - lo)[..., 0] * (np.sqrt(1.0 + slope**2) @ _GL_WEIGHTS)).sum(axis=1)
+
+    out[ok] = 4.0 * (graph_length(b[ok], a[ok]) + graph_length(a[ok], b[ok]))
+    return out
+
+
 def section_area(st: BodyStation) -> float:
     """Area of a station's section (m^2), closed form."""
     a, b = st.width / 2.0, st.height / 2.0
@@ -362,7 +385,7 @@ def _perimeters(family, a, b, r, loop) -> np.ndarray:
         return 4.0 * (a + b) - (8.0 - 2.0 * math.pi) * r
     if family[1] == 2.0:
         return np.array([ramanujan_perimeter(p, q) for p, q in zip(a, b, strict=True)])
-    return np.array([superellipse_perimeter(p, q, family[1]) for p, q in zip(a, b, strict=True)])
+    return superellipse_perimeters(a, b, family[1])
 
 
 def volume_by_sections(stations: tuple[BodyStation, ...], ruled: bool = False) -> float:
