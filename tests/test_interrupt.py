@@ -29,7 +29,11 @@ def _command(out: Path, *extra: str) -> list[str]:
     return [
         sys.executable,
         "-c",
-        "import sys; from geomgen.cli import main; sys.exit(main())",
+        # a shell's background job starts with Ctrl-C ignored, and Python then leaves it
+        # ignored (measured: CI run in the background finished a SIGINT-ed build with 0);
+        # a user's terminal delivers it, so the child starts with the default handler
+        "import signal, sys; signal.signal(signal.SIGINT, signal.default_int_handler); "
+        "from geomgen.cli import main; sys.exit(main())",
         "build",
         str(DEMO),
         "--only",
