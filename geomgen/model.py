@@ -18,7 +18,6 @@ import numpy as np
 from .atmosphere import sutherland_viscosity
 from .design import ModelSpec
 from .errors import GeometryError, InputError
-from .junction import station_of
 from .layout import Layout, SurfaceLayout, fixed_part_name, mean_line_offset, place
 from .sections import placed_section
 
@@ -638,11 +637,6 @@ def scale_effect(layout: Layout, spec: ModelSpec, k: float) -> ScaleEffect:
     )
 
 
-def station_along(plan: PartPlan, points: np.ndarray) -> np.ndarray:
-    """Stations (mm) of model points along a plan's cut axis."""
-    return plan.sign * points[:, plan.axis]
-
-
 __all__ = [
     "Hole",
     "Joint",
@@ -656,7 +650,6 @@ __all__ = [
     "parse_scale",
     "plan_cuts",
     "scale_effect",
-    "station_of",
     "surface_plan",
     "wing_root_sting",
 ]

@@ -33,6 +33,17 @@ def bodyless_document() -> dict:
     return doc
 
 
+def with_body(doc: dict, body: dict | None) -> dict:
+    """The design document with this fuselage, or with none and a tail cone instead."""
+    doc.pop("fuselage", None)
+    doc.pop("tail_cone", None)
+    if body is None:
+        doc["tail_cone"] = dict(TAIL_CONE)
+    else:
+        doc["fuselage"] = body
+    return doc
+
+
 def make_design(document: dict) -> design.Design:
     return design.from_mapping(document, source="test.yaml")
 

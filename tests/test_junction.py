@@ -45,6 +45,19 @@ def mid_wing_document(taper: float = 1.0, section: str = "naca0012") -> dict:
     return doc
 
 
+def fin(apex_z: float, **extra) -> dict:
+    """An invented fin with its reference root at water line ``apex_z`` (m)."""
+    return {
+        "volume_coefficient": 0.04,
+        "tail_arm": "3.5 m",
+        "aspect_ratio": 1.5,
+        "taper_ratio": 0.6,
+        "root_airfoil": "naca0010",
+        "apex": {"z": f"{apex_z} m"},
+        **extra,
+    }
+
+
 def mounted(doc: dict):
     d = make_design(doc)
     dirs = (PROFILES,)
@@ -88,16 +101,8 @@ def test_tapered_wing_exposed_area_is_the_trapezoid_outboard_of_the_body() -> No
 
 def test_fin_on_a_cylinder_starts_at_its_top() -> None:
     doc = mid_wing_document()
-    doc["vertical_tail"] = {
-        "volume_coefficient": 0.04,
-        "tail_arm": "3.5 m",
-        "aspect_ratio": 1.5,
-        "taper_ratio": 0.6,
-        "sweep": "20 deg",
-        "sweep_at": 0.0,
-        "root_airfoil": "naca0010",
-        "apex": {"z": f"{AXIS_Z} m"},  # the fin's reference root on the body's axis
-    }
+    # the fin's reference root on the body's axis
+    doc["vertical_tail"] = fin(AXIS_Z, sweep="20 deg", sweep_at=0.0)
     layout = mounted(doc)
     sl = layout.surface("vertical_tail")
     j, pf = sl.junction, sl.sizing.planform
@@ -173,14 +178,7 @@ def test_a_control_surface_starting_inside_the_body_is_refused() -> None:
 
 def test_a_fin_far_above_the_body_is_refused() -> None:
     doc = mid_wing_document()
-    doc["vertical_tail"] = {
-        "volume_coefficient": 0.04,
-        "tail_arm": "3.5 m",
-        "aspect_ratio": 1.5,
-        "taper_ratio": 0.6,
-        "root_airfoil": "naca0010",
-        "apex": {"z": f"{AXIS_Z + R + 1.0} m"},
-    }
+    doc["vertical_tail"] = fin(AXIS_Z + R + 1.0)
     with pytest.raises(InputError) as err:
         mounted(doc)
     assert err.value.path.startswith("vertical_tail.apex")
@@ -188,14 +186,7 @@ def test_a_fin_far_above_the_body_is_refused() -> None:
 
 def test_a_fin_slightly_above_the_body_is_extended_down_to_it() -> None:
     doc = mid_wing_document()
-    doc["vertical_tail"] = {
-        "volume_coefficient": 0.04,
-        "tail_arm": "3.5 m",
-        "aspect_ratio": 1.5,
-        "taper_ratio": 0.6,
-        "root_airfoil": "naca0010",
-        "apex": {"z": f"{AXIS_Z + R + 0.05} m"},  # 5 cm above the top
-    }
+    doc["vertical_tail"] = fin(AXIS_Z + R + 0.05)  # 5 cm above the top
     sl = mounted(doc).surface("vertical_tail")
     assert sl.junction.side_min == pytest.approx(-0.05, abs=2e-4)
     assert sl.mount_s < -0.05  # the solid reaches down into the body
@@ -209,14 +200,7 @@ def fin_build():
     from geomgen import cad
 
     doc = mid_wing_document()
-    doc["vertical_tail"] = {
-        "volume_coefficient": 0.04,
-        "tail_arm": "3.5 m",
-        "aspect_ratio": 1.5,
-        "taper_ratio": 0.6,
-        "root_airfoil": "naca0010",
-        "apex": {"z": f"{AXIS_Z} m"},
-    }
+    doc["vertical_tail"] = fin(AXIS_Z)
     layout = mounted(doc)
     return layout, cad
 

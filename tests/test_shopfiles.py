@@ -13,7 +13,7 @@ from itertools import combinations
 import ezdxf
 import numpy as np
 import pytest
-from designs import DEMO, demo_document, make_design
+from designs import DEMO, demo_document, make_design, with_body
 from ezdxf import bbox
 
 from geomgen import shopfiles
@@ -38,19 +38,6 @@ BODY = {
     "centre_z": "0.55 m",
     "shape": "ellipse",
 }
-#: Tail-cone radii for a design drawn without a fuselage (the optimum tail arm needs them).
-TAIL_CONE = {"front_radius": "0.45 m", "rear_radius": "0.1 m"}
-
-
-def with_body(doc: dict, body: dict | None) -> dict:
-    """The design document with this fuselage, or with none and a tail cone instead."""
-    doc.pop("fuselage", None)
-    doc.pop("tail_cone", None)
-    if body is None:
-        doc["tail_cone"] = dict(TAIL_CONE)
-    else:
-        doc["fuselage"] = body
-    return doc
 
 
 def body_half_sizes(x_mm: float) -> tuple[float, float]:

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import pytest
-from designs import demo_document, make_design, trapezoid_document
+from designs import demo_document, make_design, trapezoid_document, with_body
 from pypdf import PdfReader
 from pypdf.generic import ContentStream
 
@@ -148,8 +148,6 @@ def template_pages(pages: list[Page], name: str) -> list[Page]:
 
 # --- fixtures ------------------------------------------------------------------------------------
 
-#: Tail-cone radii for a design drawn without a fuselage (the optimum tail arm needs them).
-TAIL_CONE = {"front_radius": "0.45 m", "rear_radius": "0.1 m"}
 #: A model-size fuselage of our own (design file keys, invented figures): a pointed nose, an
 #: elliptic former that fits on a page, a wider super-elliptic one that does not, a pointed tail.
 MODEL_BODY = {
@@ -167,17 +165,6 @@ MODEL_BODY = {
         {"x": "900 mm", "width": "0 m", "height": "0 m", "z": "20 mm"},
     ]
 }
-
-
-def with_body(doc: dict, body: dict | None) -> dict:
-    """The design document with this fuselage, or with none and a tail cone instead."""
-    doc.pop("fuselage", None)
-    doc.pop("tail_cone", None)
-    if body is None:
-        doc["tail_cone"] = dict(TAIL_CONE)
-    else:
-        doc["fuselage"] = body
-    return doc
 
 
 def small_layout(paper: str = "A4", body: dict | None = None):
