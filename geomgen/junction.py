@@ -254,8 +254,9 @@ def _check_controls_outboard(
         need = float(np.nanmax(s_side)) + spec.side_gap
         if c.s_start < need - 1e-9:
             raise InputError(
-                f"starts inside the fuselage: the body side is {np.nanmax(s_side):.3f} m from "
-                f"the root there, so start it at {need:.3f} m or more (got {c.s_start:.3f} m)",
+                f"starts inside the fuselage: the body side is {np.nanmax(s_side):.4f} m from "
+                f"the root there, so start it at {math.ceil(need * 1000) / 1000:.3f} m or more "
+                f"(got {c.s_start:.4f} m)",
                 source=source,
                 path=f"{ss.key}.controls.{c.kind}.span_start",
             )
