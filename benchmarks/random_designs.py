@@ -23,8 +23,9 @@ sys.path.insert(0, str(ROOT / "tests"))
 from hypothesis import HealthCheck, Phase, given, seed, settings  # noqa: E402
 from test_properties import _check_invariants, _sized, designs  # noqa: E402
 
-from geomgen import cad, checks  # noqa: E402
+from geomgen.checks import solid_checks as checks  # noqa: E402
 from geomgen.errors import GeometryError  # noqa: E402
+from geomgen.solids import cad  # noqa: E402
 
 
 def main() -> int:

@@ -11,9 +11,9 @@ import json
 import sys
 from pathlib import Path
 
-from . import __version__
-from .errors import GeomgenError, InputError
-from .pipeline import run_build, run_model, run_size
+from geomgen import __version__
+from geomgen.commands.pipeline import run_build, run_model, run_size
+from geomgen.errors import GeomgenError, InputError
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -135,12 +135,12 @@ def main(argv: list[str] | None = None) -> int:
         _terminate_as_interrupt()
     try:
         if args.command == "schema":
-            from .design import json_schema
+            from geomgen.design import json_schema
 
             print(json.dumps(json_schema(), indent=2))
             return 0
         if args.command == "diff":
-            from . import diff
+            from geomgen.commands import diff
 
             result = diff.diff_paths(Path(args.old), Path(args.new), args.tolerance)
             if args.format == "json":
@@ -149,7 +149,7 @@ def main(argv: list[str] | None = None) -> int:
                 print(diff.to_markdown(result, args.old, args.new), end="")
             return 0 if result["equal"] else 1
         if args.command == "sweep":
-            from .sweep import run_sweep
+            from geomgen.commands.sweep import run_sweep
 
             swept = run_sweep(
                 Path(args.design),
@@ -189,7 +189,7 @@ def main(argv: list[str] | None = None) -> int:
         if args.command == "model":
             span = None
             if args.span is not None:
-                from .units import UnitParseError, parse_quantity
+                from geomgen.design.units import UnitParseError, parse_quantity
 
                 try:
                     span = parse_quantity(args.span, "length")

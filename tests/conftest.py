@@ -27,13 +27,14 @@ class CliRun:
     stdout: str
     stderr: str
     out_root: Path
-    build: Any  # geomgen.cad.Build, or None when the run stopped before building
+    build: Any  # geomgen.solids.cad.Build, or None when the run stopped before building
 
 
 def run_build_cli(argv: list[str], out_root: Path) -> CliRun:
     """``geomgen build ARGV --out OUT_ROOT`` in-process, catching the Build object."""
     # imported here: cadquery costs ~2 s, and collecting the fast tests must not pay for it
-    from geomgen import cad, cli
+    from geomgen import cli
+    from geomgen.solids import cad
 
     caught: dict[str, Any] = {}
     real_build = cad.build

@@ -7,7 +7,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from geomgen.airfoils import (
+from geomgen.errors import InputError
+from geomgen.shapes.airfoils import (
     MAX_TE_GAP,
     NACA5_MEAN_LINES,
     Airfoil,
@@ -21,7 +22,6 @@ from geomgen.airfoils import (
     with_min_te_thickness,
     write_coordinates,
 )
-from geomgen.errors import InputError
 
 PROFILES = Path(__file__).resolve().parents[1] / "profiles"
 

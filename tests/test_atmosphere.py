@@ -7,14 +7,14 @@ import math
 import numpy as np
 import pytest
 
-from geomgen.atmosphere import (
+from geomgen.errors import InputError
+from geomgen.sizing.atmosphere import (
     AtmosphereState,
     geometric_from_geopotential,
     geopotential_from_geometric,
     isa,
     sutherland_viscosity,
 )
-from geomgen.errors import InputError
 
 # Exact (defined) conversion factors.
 FOOT = 0.3048  # m, exact by definition (international foot, 1959)

@@ -844,7 +844,7 @@ SMALL_PRINTER = {"build_volume": ["60 mm"] * 3}
 def test_model_of_too_many_pieces_is_refused_up_front(
     args: list[str], model: dict, key: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]
 ) -> None:
-    from geomgen import model as mdl
+    from geomgen.printed_model import plan as mdl
 
     path = _model_design(tmp_path, model)
     out = tmp_path / "out"
@@ -871,8 +871,8 @@ def test_model_at_full_size_is_refused_before_any_solid(
 
 
 def test_plan_cuts_refuses_absurd_piece_counts() -> None:
-    from geomgen import model as mdl
     from geomgen.errors import GeometryError
+    from geomgen.printed_model import plan as mdl
 
     assert len(mdl.plan_cuts(0.0, 1000.0, 208.0, [])) == 4  # ceil(1000 / 208) = 5 pieces
     with pytest.raises(GeometryError, match=f"at most {mdl.MAX_MODEL_PIECES} are made"):

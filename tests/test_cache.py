@@ -10,8 +10,8 @@ import pytest
 import yaml
 from designs import demo_document
 
-from geomgen.cache import MANIFEST, Cache, key_of
-from geomgen.pipeline import run_build
+from geomgen.commands.pipeline import run_build
+from geomgen.store.cache import MANIFEST, Cache, key_of
 
 
 def test_a_cache_entry_reads_back_only_when_intact(tmp_path: Path) -> None:

@@ -20,11 +20,12 @@ from pathlib import Path
 import pytest
 from designs import DEMO, demo_document, make_design
 
-from geomgen import shopfiles, stamp
 from geomgen.cli import main
 from geomgen.errors import InputError
-from geomgen.layout import lay_out
-from geomgen.sizing import size
+from geomgen.geometry.layout import lay_out
+from geomgen.outputs import dxf as shopfiles
+from geomgen.sizing.aircraft import size
+from geomgen.store import stamp
 
 # 2031-05-17T09:30:00Z, a date of our own, far from the demo's 2026-12-01 and from the fallback
 # (seconds by GNU coreutils: date -u -d "2031-05-17 09:30:00" +%s)
@@ -116,7 +117,7 @@ def test_source_date_epoch_sets_the_step_and_dxf_stamps(
 ) -> None:
     import cadquery as cq
 
-    from geomgen import cad
+    from geomgen.solids import cad
 
     box = cad.Part("fin", "fin", "vertical_tail", "centre", cq.Solid.makeBox(10, 20, 30),
                    False, 0.0, 10.0)  # fmt: skip

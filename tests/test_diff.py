@@ -13,10 +13,10 @@ import pytest
 import yaml
 from designs import DEMO, demo_document
 
-from geomgen import diff
 from geomgen.cli import main
-from geomgen.pipeline import _size
-from geomgen.report import report_data
+from geomgen.commands import diff
+from geomgen.commands.pipeline import _size
+from geomgen.outputs.report import report_data
 
 #: the wing-area factor of the scaled design
 K = 1.21

@@ -21,11 +21,12 @@ from pathlib import Path
 import pytest
 from designs import DEMO, demo_document, make_design
 
-from geomgen import design, pipeline
-from geomgen.drawing import three_view
-from geomgen.layout import Layout, corner_labels, lay_out
-from geomgen.report import CAUTION
-from geomgen.sizing import size
+from geomgen import design
+from geomgen.commands import pipeline
+from geomgen.geometry.layout import Layout, corner_labels, lay_out
+from geomgen.outputs.report import CAUTION
+from geomgen.outputs.three_view import three_view
+from geomgen.sizing.aircraft import size
 
 SVG = "{http://www.w3.org/2000/svg}"
 MM_PER_PT = 25.4 / 72  # 1 pt = 1/72 in (SVG/CSS unit definition), 1 in = 25.4 mm exactly
@@ -378,6 +379,6 @@ def test_unknown_unit_system_is_refused(tmp_path):
 
 
 def test_importing_the_module_does_not_import_matplotlib():
-    code = "import sys, geomgen.drawing; print('matplotlib' in sys.modules)"
+    code = "import sys, geomgen.outputs.three_view; print('matplotlib' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"

@@ -21,11 +21,11 @@ from designs import bodyless_document, demo_document, make_design
 from OCP.Bnd import Bnd_Box
 from OCP.BRepBndLib import BRepBndLib
 
-from geomgen import fuselage as fu
+from geomgen.checks.tolerances import TOLERANCES
 from geomgen.cli import main
 from geomgen.design import BodyStation, FuselageSpec, ParametricBody
 from geomgen.errors import InputError
-from geomgen.tolerances import TOLERANCES
+from geomgen.shapes import fuselage as fu
 
 MM = 1000.0  # mm per m (SI definition)
 TESSELLATION_MM = 2.0  # coarse meshes: the tests check closure, not accuracy
@@ -234,14 +234,14 @@ def test_elliptic_cylinder_and_cone() -> None:
 @pytest.fixture(scope="module")
 def cad():
     # imported here: cadquery costs ~2 s, and collecting the fast tests must not pay for it
-    from geomgen import cad
+    from geomgen.solids import cad
 
     return cad
 
 
 @pytest.fixture(scope="module")
 def checks():
-    from geomgen import checks
+    from geomgen.checks import solid_checks as checks
 
     return checks
 
@@ -574,7 +574,7 @@ def test_tail_cone_and_fuselage_together_are_refused() -> None:
 def test_optimum_tail_arm_uses_the_bodys_tail_cone_radii() -> None:
     # the minimum-wetted-area arm l = sqrt(2 S (V_H c + V_V b) / (pi (R1 + R2))) (derived in
     # tests/test_sizing.py) with R1, R2 the body's equivalent radii sqrt(area / pi)
-    from geomgen.sizing import size
+    from geomgen.sizing.aircraft import size
 
     doc = body_document()
     doc["fuselage"] = DEMO_BODY

@@ -21,11 +21,11 @@ import pytest
 from designs import DEMO, demo_document, make_design
 
 from geomgen import design
-from geomgen.html_report import to_html, write_html
-from geomgen.layout import Layout, corner_labels, fixed_part_name, lay_out
-from geomgen.pipeline import airfoil_dirs
-from geomgen.report import CAUTION, to_json
-from geomgen.sizing import size
+from geomgen.commands.pipeline import airfoil_dirs
+from geomgen.geometry.layout import Layout, corner_labels, fixed_part_name, lay_out
+from geomgen.outputs.html_report import to_html, write_html
+from geomgen.outputs.report import CAUTION, to_json
+from geomgen.sizing.aircraft import size
 
 CHROMIUM = Path("/usr/bin/chromium")
 CHROMEDRIVER = Path("/usr/bin/chromedriver")

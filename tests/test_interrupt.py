@@ -143,7 +143,7 @@ def test_cache_removes_temporaries_a_killed_run_left(tmp_path: Path) -> None:
     may be writing them)."""
     import os
 
-    from geomgen.cache import STALE_TEMPORARY_AGE, Cache
+    from geomgen.store.cache import STALE_TEMPORARY_AGE, Cache
 
     store = Cache(tmp_path / ".cache")
     key = "ab" + "0" * 62

@@ -10,11 +10,11 @@ import numpy as np
 import pytest
 from designs import PROFILES, make_design, trapezoid_document
 
-from geomgen import junction
 from geomgen.design import BodyStation
 from geomgen.errors import InputError
-from geomgen.layout import lay_out
-from geomgen.sizing import size
+from geomgen.geometry import junction
+from geomgen.geometry.layout import lay_out
+from geomgen.sizing.aircraft import size
 
 R = 0.4  # m, radius of the invented cylindrical body
 AXIS_Z = 1.0  # m, water line of its axis
@@ -197,7 +197,7 @@ def test_a_fin_slightly_above_the_body_is_extended_down_to_it() -> None:
 @pytest.fixture(scope="module")
 def fin_build():
     """A fin on the cylinder, built with the CAD kernel, and its mesh (mm)."""
-    from geomgen import cad
+    from geomgen.solids import cad
 
     doc = mid_wing_document()
     doc["vertical_tail"] = fin(AXIS_Z)
@@ -206,7 +206,7 @@ def fin_build():
 
 
 def _fin_checks(layout, cad, mount_s: float):
-    from geomgen import checks
+    from geomgen.checks import solid_checks as checks
 
     sl = layout.surface("vertical_tail")
     j = dataclasses.replace(sl.junction, mount_s=mount_s)

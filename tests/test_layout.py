@@ -7,8 +7,8 @@ import numpy as np
 import pytest
 from designs import demo_document, make_design, trapezoid_document
 
-from geomgen.layout import lay_out, place
-from geomgen.sizing import size
+from geomgen.geometry.layout import lay_out, place
+from geomgen.sizing.aircraft import size
 
 
 def shoelace(points) -> float:

@@ -14,12 +14,12 @@ import trimesh
 import yaml
 from designs import DEMO, PROFILES, demo_document, make_design, trapezoid_document
 
-from geomgen import model as mdl
 from geomgen.cli import main
 from geomgen.errors import InputError
-from geomgen.junction import mount
-from geomgen.layout import lay_out
-from geomgen.sizing import size
+from geomgen.geometry.junction import mount
+from geomgen.geometry.layout import lay_out
+from geomgen.printed_model import plan as mdl
+from geomgen.sizing.aircraft import size
 
 BUILD_VOLUME = (220.0, 220.0, 250.0)  # mm, the printer
 
@@ -151,7 +151,7 @@ def test_demo_model_volumes_scale_by_the_cube(demo_model: Path, demo_build) -> N
         for p in (demo_model / "stl").glob("wing-right-*.stl")
     ]
     full = next(p for p in demo_build.build.parts if p.name == "wing-right")
-    from geomgen import cad
+    from geomgen.solids import cad
 
     assert sum(pieces) == pytest.approx(cad.volume(full.shape) * 1e-3, rel=0.02)
     report = (demo_model / "model-report.md").read_text(encoding="utf-8")
@@ -252,7 +252,7 @@ def test_no_scale_anywhere_is_refused(tmp_path: Path, capsys: pytest.CaptureFixt
 def test_scaling_takes_volumes_by_the_cube_and_areas_by_the_square(demo_build) -> None:
     # geometric similarity: a solid scaled by k has k^3 its volume and k^2 its surface area,
     # exactly (up to the integration tolerance: model volumes are integrated to 1e-5)
-    from geomgen import cad
+    from geomgen.solids import cad
 
     fin = next(p for p in demo_build.build.parts if p.name == "fin").shape
     k = 1.0 / 12.0

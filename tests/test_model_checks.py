@@ -16,8 +16,8 @@ import numpy as np
 import pytest
 import trimesh
 
-from geomgen import checks
-from geomgen.tolerances import TOLERANCES
+from geomgen.checks import solid_checks as checks
+from geomgen.checks.tolerances import TOLERANCES
 
 # ------------------------------------------------------------------------------------------
 # test pieces: prisms along x built here (no boolean library is installed)

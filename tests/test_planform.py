@@ -5,7 +5,7 @@ import math
 import numpy as np
 import pytest
 
-from geomgen.planform import PanelInput, build_planform, convert_sweep
+from geomgen.sizing.planform import PanelInput, build_planform, convert_sweep
 
 DEG = math.pi / 180
 

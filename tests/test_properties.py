@@ -25,10 +25,10 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from geomgen import design
+from geomgen.design.units import parse_quantity
 from geomgen.errors import GeometryError, InputError
-from geomgen.layout import Layout, lay_out
-from geomgen.sizing import Sizing, size
-from geomgen.units import parse_quantity
+from geomgen.geometry.layout import Layout, lay_out
+from geomgen.sizing.aircraft import Sizing, size
 
 FAST = settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 
@@ -225,7 +225,8 @@ def test_random_tails_build_with_every_check_passing(doc: dict, surface: str) ->
     result = _sized(doc)
     if result is None:
         return
-    from geomgen import cad, checks
+    from geomgen.checks import solid_checks as checks
+    from geomgen.solids import cad
 
     _, layout = result
     try:

@@ -9,9 +9,9 @@ import numpy as np
 import pytest
 from designs import PROFILES, demo_document, make_design, trapezoid_document
 
-from geomgen.layout import lay_out
-from geomgen.sections import surface_sections, volume_from_sections
-from geomgen.sizing import size
+from geomgen.geometry.layout import lay_out
+from geomgen.geometry.sections import surface_sections, volume_from_sections
+from geomgen.sizing.aircraft import size
 
 #: NACA 4-digit thickness form, open trailing edge (NACA Report 460, Jacobs, Ward & Pinkerton
 #: 1933; Abbott & von Doenhoff, Theory of Wing Sections, 1959, section 6.4)

@@ -16,11 +16,11 @@ import pytest
 from designs import DEMO, demo_document, make_design, with_body
 from ezdxf import bbox
 
-from geomgen import shopfiles
-from geomgen.fuselage import expand
-from geomgen.layout import lay_out
-from geomgen.pipeline import airfoil_dirs, run_size
-from geomgen.sizing import size
+from geomgen.commands.pipeline import airfoil_dirs, run_size
+from geomgen.geometry.layout import lay_out
+from geomgen.outputs import dxf as shopfiles
+from geomgen.shapes.fuselage import expand
+from geomgen.sizing.aircraft import size
 
 PLAN_LAYERS = {"outline", "hinge-line", "mgc", "dimensions", "labels"}
 SURFACE_WORDS = {"wing", "stabilizer", "fin"}

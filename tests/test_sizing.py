@@ -5,8 +5,8 @@ import math
 import pytest
 from designs import make_design, trapezoid_document
 
-from geomgen.atmosphere import isa
-from geomgen.sizing import optimum_tail_arm, size, stall_wing_area, wetted_area
+from geomgen.sizing.aircraft import optimum_tail_arm, size, stall_wing_area, wetted_area
+from geomgen.sizing.atmosphere import isa
 
 
 def sea_level_doc(**wing):

@@ -24,12 +24,12 @@ from designs import DEMO, PROFILES, demo_document, make_design, trapezoid_docume
 from OCP.Bnd import Bnd_Box
 from OCP.BRepBndLib import BRepBndLib
 
-import geomgen.checks
-import geomgen.tolerances
-from geomgen import cad
-from geomgen.layout import lay_out
-from geomgen.sizing import size
-from geomgen.tolerances import TOLERANCES
+import geomgen.checks.solid_checks
+import geomgen.checks.tolerances
+from geomgen.checks.tolerances import TOLERANCES
+from geomgen.geometry.layout import lay_out
+from geomgen.sizing.aircraft import size
+from geomgen.solids import cad
 
 MM = 1000.0  # mm per m (SI definition)
 
@@ -239,7 +239,7 @@ def test_plain_wing_wetted_area_matches_raymer(plain_wings: dict, case: str) -> 
 def demo(demo_build: CliRun) -> CliRun:
     if demo_build.code != 0:
         pytest.fail(f"the demo build failed (exit {demo_build.code}): {demo_build.stderr}")
-    assert demo_build.build is not None, "the pipeline no longer calls geomgen.cad.build"
+    assert demo_build.build is not None, "the pipeline no longer calls geomgen.solids.cad.build"
     return demo_build
 
 
@@ -619,8 +619,8 @@ def test_failed_check_exits_1_and_keeps_the_previous_outputs(
     assert "checks.json" in before and "small-wing.step" in before
 
     impossible = dataclasses.replace(TOLERANCES, projected_area=-1.0)  # no area can pass
-    monkeypatch.setattr(geomgen.tolerances, "TOLERANCES", impossible)
-    monkeypatch.setattr(geomgen.checks, "TOLERANCES", impossible)
+    monkeypatch.setattr(geomgen.checks.tolerances, "TOLERANCES", impossible)
+    monkeypatch.setattr(geomgen.checks.solid_checks, "TOLERANCES", impossible)
     # --fresh: the same design over intact outputs would otherwise be kept as it is
     second = run_build_cli([str(design), "--fresh"], out_root)
     assert second.code == 1

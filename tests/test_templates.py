@@ -15,9 +15,9 @@ from designs import demo_document, make_design, trapezoid_document, with_body
 from pypdf import PdfReader
 from pypdf.generic import ContentStream
 
-from geomgen import templates
-from geomgen.layout import lay_out
-from geomgen.sizing import size
+from geomgen.geometry.layout import lay_out
+from geomgen.outputs import templates
+from geomgen.sizing.aircraft import size
 
 # 72 pt per inch (PDF 1.7, ISO 32000-1, 8.3.2.3: default user space unit 1/72 in) and
 # 25.4 mm per inch exactly (international inch, 1959)

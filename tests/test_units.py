@@ -4,7 +4,7 @@ import math
 
 import pytest
 
-from geomgen.units import G0, UnitParseError, parse_quantity, to_output
+from geomgen.design.units import G0, UnitParseError, parse_quantity, to_output
 
 # Exact definitions: international foot 1 ft = 0.3048 m and pound 1 lb = 0.45359237 kg
 # (International Yard and Pound Agreement, 1959); knot 1 kn = 1852 m / 3600 s (international

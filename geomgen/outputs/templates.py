@@ -29,13 +29,13 @@ from typing import ClassVar
 
 import numpy as np
 
-from .design import BodyStation
-from .fuselage import Shares, body_shares, expand, is_point, section_points
-from .layout import PART_NAMES, Layout, SurfaceLayout
-from .report import CAUTION
-from .sections import unit_section
-from .sizing import SurfaceSizing
-from .stamp import output_time
+from geomgen.design import BodyStation
+from geomgen.geometry.layout import PART_NAMES, Layout, SurfaceLayout
+from geomgen.geometry.sections import unit_section
+from geomgen.outputs.report import CAUTION
+from geomgen.shapes.fuselage import Shares, body_shares, expand, is_point, section_points
+from geomgen.sizing.aircraft import SurfaceSizing
+from geomgen.store.stamp import output_time
 
 #: Paper sizes, portrait (mm): ISO 216 A4 and ANSI Letter (8.5 in x 11 in, 25.4 mm per inch).
 PAPER_MM = {"A4": (210.0, 297.0), "Letter": (215.9, 279.4)}

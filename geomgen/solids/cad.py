@@ -39,11 +39,17 @@ from OCP.StlAPI import StlAPI_Writer
 from OCP.TopAbs import TopAbs_Orientation
 from OCP.TopLoc import TopLoc_Location
 
-from .errors import GeometryError
-from .fuselage import BodyStation, loft_sections
-from .layout import PART_NAMES, ControlLayout, Layout, SurfaceLayout, fixed_part_name
-from .sections import PlacedSection, surface_sections, unit_section
-from .stamp import output_time
+from geomgen.errors import GeometryError
+from geomgen.geometry.layout import (
+    PART_NAMES,
+    ControlLayout,
+    Layout,
+    SurfaceLayout,
+    fixed_part_name,
+)
+from geomgen.geometry.sections import PlacedSection, surface_sections, unit_section
+from geomgen.shapes.fuselage import BodyStation, loft_sections
+from geomgen.store.stamp import output_time
 
 MM = 1000.0  # mm per m
 
@@ -416,7 +422,7 @@ def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=
         size_min = min(max(st.width for st in body), max(st.height for st in body))
         shape = None
         if store is not None:
-            from .cache import key_of
+            from geomgen.store.cache import key_of
 
             key = key_of("fuselage", body)
             entry = store.get(key, "fuselage")
@@ -476,8 +482,8 @@ def build_side(sl: SurfaceLayout, side: str, points: int, te: float, dirs: tuple
 def side_key(sl: SurfaceLayout, side: str, layout: Layout, dirs: tuple) -> str:
     """Cache key of one surface side: its layout (sizing, spec, corners, controls, mount),
     the solids settings, the coordinates of every section it uses, and the versions."""
-    from . import airfoils
-    from .cache import key_of
+    from geomgen.shapes import airfoils
+    from geomgen.store.cache import key_of
 
     names = sorted({n for st in sl.sizing.planform.stations for n in st.airfoil[:2]})
     sections = [(n, airfoils.load(n, dirs).upper, airfoils.load(n, dirs).lower) for n in names]

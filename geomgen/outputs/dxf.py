@@ -20,13 +20,18 @@ from pathlib import Path
 
 import numpy as np
 
-from .design import BodyStation
-from .errors import GeometryError
-from .fuselage import expand, loft_sections
-from .layout import PART_NAMES, Layout, SurfaceLayout, corner_labels, place
-from .report import CAUTION, SURFACE_TITLES
-from .stamp import output_time
-from .templates import FormerTemplate, SectionTemplate, former_templates, section_templates
+from geomgen.design import BodyStation
+from geomgen.errors import GeometryError
+from geomgen.geometry.layout import PART_NAMES, Layout, SurfaceLayout, corner_labels, place
+from geomgen.outputs.report import CAUTION, SURFACE_TITLES
+from geomgen.outputs.templates import (
+    FormerTemplate,
+    SectionTemplate,
+    former_templates,
+    section_templates,
+)
+from geomgen.shapes.fuselage import expand, loft_sections
+from geomgen.store.stamp import output_time
 
 #: Layers of the plan view and planform drawings: name -> (ACI colour, line type).
 LAYERS = {

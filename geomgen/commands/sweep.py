@@ -34,7 +34,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from .errors import InputError
+from geomgen.errors import InputError
 
 #: at most this many variants in one sweep
 MAX_VARIANTS = 500
@@ -119,8 +119,8 @@ def _split_path(key: str) -> tuple[str | int, ...]:
 def _declared_field(steps: tuple[str | int, ...], document: dict, source: str, key: str):
     """The declaration (geomgen.fields) of the key at ``steps``; its parents must be in the
     design (list items too), the key itself may be left out if the design file allows it."""
-    from . import design as design_module
-    from .fields import AnyOf, ListOf, Mapping
+    from geomgen import design as design_module
+    from geomgen.design.fields import AnyOf, ListOf, Mapping
 
     field: Any = design_module.DESIGN
     node: Any = document
@@ -183,7 +183,7 @@ def _number_text(x: int | float) -> str:
 
 def parse_vary(text: str, document: dict, source: str) -> Vary:
     """One ``KEY=VALUES`` option checked against the design's mapping and its declaration."""
-    from .fields import AnyOf, Flag, Number, Quantity, Text
+    from geomgen.design.fields import AnyOf, Flag, Number, Quantity, Text
 
     key, sep, spec = text.partition("=")
     key, spec = key.strip(), spec.strip()
@@ -285,7 +285,7 @@ def _common_unit(key: str, units: list[str], spec: str) -> str:
 
 
 def _check_unit(key: str, value: str, quantities: list) -> None:
-    from .units import UnitParseError, parse_quantity
+    from geomgen.design.units import UnitParseError, parse_quantity
 
     errors = []
     for q in quantities:
@@ -397,8 +397,8 @@ def run_variant(design_path: str, build: bool = False) -> dict:
     folder); returns a plain row: ``status`` ("ok" or "failed: <message>") and the summary
     numbers. Never raises for a failing variant. Top-level and picklable arguments, for
     process pools and Dask workers."""
-    from .errors import GeomgenError
-    from .pipeline import run_build, run_size
+    from geomgen.commands.pipeline import run_build, run_size
+    from geomgen.errors import GeomgenError
 
     path = Path(design_path)
     folder = path.parent
@@ -616,7 +616,7 @@ def run_sweep(
     (and the plot). Bad options raise InputError before anything is written."""
     import yaml
 
-    from . import design as design_module
+    from geomgen import design as design_module
 
     design_path = Path(design_path)
     base = design_module.load(design_path)  # the design must be valid on its own

@@ -15,10 +15,10 @@ from functools import lru_cache
 
 import numpy as np
 
-from . import airfoils
-from .errors import InputError
-from .layout import SurfaceLayout, place
-from .sizing import SurfaceSizing
+from geomgen.errors import InputError
+from geomgen.geometry.layout import SurfaceLayout, place
+from geomgen.shapes import airfoils
+from geomgen.sizing.aircraft import SurfaceSizing
 
 
 @dataclass(frozen=True, eq=False)

@@ -19,13 +19,13 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from . import airfoils
-from .errors import InputError
-from .sizing import Sizing, SurfaceSizing
+from geomgen.errors import InputError
+from geomgen.shapes import airfoils
+from geomgen.sizing.aircraft import Sizing, SurfaceSizing
 
-if TYPE_CHECKING:  # the junction module builds on this one
-    from .design import BodyStation
-    from .junction import Junction
+if TYPE_CHECKING:
+    from geomgen.design import BodyStation
+    from geomgen.geometry.mount import Junction
 
 Point = tuple[float, float, float]
 

@@ -9,10 +9,10 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
-from .errors import GeometryError, InputError
-from .output import OutputFolder
+from geomgen.errors import GeometryError, InputError
+from geomgen.store.folder import OutputFolder
 
-PROFILES_DIR = Path(__file__).resolve().parent.parent / "profiles"
+PROFILES_DIR = Path(__file__).resolve().parents[2] / "profiles"
 
 
 def airfoil_dirs(design_path: Path) -> tuple[Path, ...]:
@@ -21,10 +21,10 @@ def airfoil_dirs(design_path: Path) -> tuple[Path, ...]:
 
 
 def _size(design_path: Path):
-    from . import design as design_module
-    from .junction import mount
-    from .layout import lay_out
-    from .sizing import size
+    from geomgen import design as design_module
+    from geomgen.geometry.junction import mount
+    from geomgen.geometry.layout import lay_out
+    from geomgen.sizing.aircraft import size
 
     dirs = airfoil_dirs(design_path)
     d = design_module.load(design_path)
@@ -32,7 +32,7 @@ def _size(design_path: Path):
 
 
 def _write_reports(folder: OutputFolder, layout, system: str) -> None:
-    from .report import to_json, to_markdown
+    from geomgen.outputs.report import to_json, to_markdown
 
     folder.write_text("report.json", to_json(layout))
     folder.write_text("report.md", to_markdown(layout, system))
@@ -40,7 +40,7 @@ def _write_reports(folder: OutputFolder, layout, system: str) -> None:
 
 def _write_drawings(folder: OutputFolder, layout, system: str, dirs: tuple) -> str:
     """Three-view (SVG, PNG) and the shop DXF files; returns the SVG text for report.html."""
-    from .drawing import three_view
+    from geomgen.outputs.three_view import three_view
 
     svg = folder.path("three-view.svg")
     three_view(layout, svg, folder.path("three-view.png"), system)
@@ -50,7 +50,7 @@ def _write_drawings(folder: OutputFolder, layout, system: str, dirs: tuple) -> s
 
 def _write_shop_files(folder: OutputFolder, layout, dirs: tuple) -> None:
     """DXF files 1:1 in mm: plan view, one planform per surface, section templates."""
-    from .shopfiles import write_plan_dxf, write_planform_dxfs, write_template_dxf
+    from geomgen.outputs.dxf import write_plan_dxf, write_planform_dxfs, write_template_dxf
 
     write_plan_dxf(layout, folder.path("dxf/plan.dxf"))
     write_planform_dxfs(layout, folder.path("dxf/plan.dxf").parent)
@@ -65,7 +65,7 @@ def run_size(design_path: Path, out_root: Path, units: str | None, drawings: boo
     with OutputFolder(out_root / d.name) as folder:
         _write_reports(folder, layout, system)
         if drawings:
-            from .html_report import write_html
+            from geomgen.outputs.html_report import write_html
 
             svg = _write_drawings(folder, layout, system, dirs)
             write_html(layout, folder.path("report.html"), svg=svg, units=system)
@@ -112,8 +112,8 @@ def run_build(
                 f"unknown part {unknown[0]!r}; parts of this design: {', '.join(sorted(known))}",
                 path="--only",
             )
-    from .cache import Cache, key_of
-    from .stamp import output_time
+    from geomgen.store.cache import Cache, key_of
+    from geomgen.store.stamp import output_time
 
     build_key = key_of(
         "build",
@@ -127,7 +127,8 @@ def run_build(
     if not fresh and _unchanged(target, build_key):
         stage("nothing changed since the last build: every output kept")
         return _kept_result(target)
-    from . import cad, checks
+    from geomgen.checks import solid_checks as checks
+    from geomgen.solids import cad
 
     store = Cache(out_root / ".cache", enabled=not fresh)
     built = cad.build(layout, dirs, only, store)
@@ -142,12 +143,12 @@ def run_build(
     with OutputFolder(out_root / d.name) as folder:
         _write_reports(folder, layout, system)
         svg = _write_drawings(folder, layout, system, dirs)
-        from .templates import write_template_pdf
+        from geomgen.outputs.templates import write_template_pdf
 
         write_template_pdf(layout, folder.path("templates.pdf"), dirs)
         stage("wrote the reports, drawings, DXF files and 1:1 templates")
         step_path = folder.path(f"{d.name}.step")
-        from .stamp import output_time
+        from geomgen.store.stamp import output_time
 
         cad.write_step(parts, step_path, d.name, when=output_time(d))
         stage(f"wrote {step_path.name}")
@@ -186,7 +187,7 @@ def run_build(
         folder.write_text("checks.json", checks_text)
         folder.write_text("parts.json", _parts_json(parts, cad))
         # (the stamp is written last, once report.html is there: see below)
-        from .html_report import write_html
+        from geomgen.outputs.html_report import write_html
 
         write_html(
             layout,
@@ -197,7 +198,7 @@ def run_build(
             units=system,
         )
         stage("wrote report.html")
-        from .cache import manifest_of
+        from geomgen.store.cache import manifest_of
 
         stamp = {"key": build_key, "files": manifest_of(folder.temp, skip=(BUILD_STAMP,))}
         folder.write_text(BUILD_STAMP, json.dumps(stamp, indent=1, sort_keys=True))
@@ -213,7 +214,7 @@ def run_build(
 def _section_data(layout, dirs: tuple) -> list:
     """Coordinates of every section the surfaces use (a changed coordinate file changes the
     build key)."""
-    from . import airfoils
+    from geomgen.shapes import airfoils
 
     names = sorted(
         {n for sl in layout.surfaces for st in sl.sizing.planform.stations for n in st.airfoil[:2]}
@@ -229,7 +230,7 @@ def _unchanged(target: Path, key: str) -> bool:
         return False
     if stamp.get("key") != key:
         return False
-    from .cache import manifest_of
+    from geomgen.store.cache import manifest_of
 
     return stamp.get("files") == manifest_of(target, skip=(BUILD_STAMP,))
 
@@ -258,7 +259,7 @@ def _parts_json(parts, cad) -> str:
 
 
 def _checks_json(results) -> str:
-    from .report import CAUTION
+    from geomgen.outputs.report import CAUTION
 
     data = {
         "caution": CAUTION,
@@ -298,8 +299,8 @@ def run_model(
 
     import numpy as np
 
-    from . import design as design_module
-    from . import model as mdl
+    from geomgen import design as design_module
+    from geomgen.printed_model import plan as mdl
 
     t0 = time.perf_counter()
 
@@ -313,7 +314,8 @@ def run_model(
     te_full = max(d.solids.te_thickness, spec.min_te_thickness / k)
     d2 = dataclasses.replace(d, solids=dataclasses.replace(d.solids, te_thickness=te_full))
     layout2 = dataclasses.replace(layout, sizing=dataclasses.replace(layout.sizing, design=d2))
-    from . import cad, checks
+    from geomgen.checks import solid_checks as checks
+    from geomgen.solids import cad
 
     built = cad.build(layout2, dirs)
     stage(f"built the full-size solids (trailing edges at least {te_full * 1000:.1f} mm)")
@@ -410,7 +412,7 @@ def run_model(
         checks.write_3mf(meshes, threemf)
         back = checks.read_3mf(threemf)
         results.append(checks.threemf_check(meshes, back))
-        from .modelreport import parts_csv, parts_markdown, report_markdown
+        from geomgen.printed_model.report import parts_csv, parts_markdown, report_markdown
 
         density = spec.material_density
         folder.write_text("parts.md", parts_markdown(rows, density, checks.orientation_words))
@@ -484,7 +486,7 @@ def _source_part(name: str, plans, variants) -> str:
 
 def _reassembly_checks(reassembly, pieces, checks, cad) -> list:
     """The pieces of each part add up to the scaled part minus its holes (1 %)."""
-    from .tolerances import TOLERANCES
+    from geomgen.checks.tolerances import TOLERANCES
 
     out = []
     for plan, whole in reassembly:
@@ -507,7 +509,7 @@ def _joint_checks(plans, meshes, checks) -> list:
     """The dowel holes on the two faces of every joint line up (0.05 mm)."""
     import numpy as np
 
-    from .tolerances import TOLERANCES
+    from geomgen.checks.tolerances import TOLERANCES
 
     out = []
     for plan in plans:

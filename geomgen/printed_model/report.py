@@ -13,7 +13,7 @@ from collections.abc import Callable
 
 import numpy as np
 
-from .report import CAUTION
+from geomgen.outputs.report import CAUTION
 
 HEADER = ["piece", "from part", "size (mm)", "volume (cm^3)", "mass (g)", "print with"]
 

@@ -15,8 +15,7 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from .errors import InputError
-from .fields import (
+from geomgen.design.fields import (
     AnyOf,
     FieldError,
     Flag,
@@ -28,6 +27,7 @@ from .fields import (
     between,
     ge,
 )
+from geomgen.errors import InputError
 
 #: Design files larger than this are refused before parsing (bytes).
 MAX_DESIGN_BYTES = 1_000_000

@@ -10,7 +10,7 @@ import tempfile
 from pathlib import Path
 from types import TracebackType
 
-from .errors import InputError
+from geomgen.errors import InputError
 
 
 class OutputFolder:

@@ -18,11 +18,11 @@ import math
 from dataclasses import dataclass
 from pathlib import Path
 
-from . import airfoils
-from .atmosphere import AtmosphereState, isa
-from .design import Design, SurfaceSpec
-from .errors import InputError
-from .planform import PanelInput, Planform, build_planform
+from geomgen.design import Design, SurfaceSpec
+from geomgen.errors import InputError
+from geomgen.shapes import airfoils
+from geomgen.sizing.atmosphere import AtmosphereState, isa
+from geomgen.sizing.planform import PanelInput, Planform, build_planform
 
 
 @dataclass(frozen=True)
@@ -195,7 +195,7 @@ def _tail_cone_radii(design: Design) -> tuple[float, float]:
     given (equivalent radii sqrt(area / pi) where the body starts to shrink and at its end),
     else from the design's tail_cone."""
     if design.fuselage is not None:
-        from .fuselage import expand, tail_cone_radii
+        from geomgen.shapes.fuselage import expand, tail_cone_radii
 
         front, rear = tail_cone_radii(expand(design.fuselage))
         if not front > rear:

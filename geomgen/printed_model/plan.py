@@ -15,11 +15,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .atmosphere import sutherland_viscosity
-from .design import ModelSpec
-from .errors import GeometryError, InputError
-from .layout import Layout, SurfaceLayout, fixed_part_name, mean_line_offset, place
-from .sections import placed_section
+from geomgen.design import ModelSpec
+from geomgen.errors import GeometryError, InputError
+from geomgen.geometry.layout import Layout, SurfaceLayout, fixed_part_name, mean_line_offset, place
+from geomgen.geometry.sections import placed_section
+from geomgen.sizing.atmosphere import sutherland_viscosity
 
 #: the gas constant of dry air used by the standard atmosphere, J/(kg K) (ICAO Doc 7488)
 AIR_GAS_CONSTANT = 287.05287
@@ -540,7 +540,7 @@ def body_plan(layout: Layout, spec: ModelSpec, k: float, surface_holes: list[Hol
                 (centre[0] - h.size - JOINT_CLEARANCE, centre[0] + h.size + JOINT_CLEARANCE)
             )
     cuts = plan_cuts(start, end, longest, avoid)
-    from .junction import body_loops
+    from geomgen.geometry.junction import body_loops
 
     joints = []
     r = spec.dowel_diameter * 500.0
@@ -574,7 +574,7 @@ def _sting(layout: Layout, spec: ModelSpec, f: float) -> Hole:
         tail = body[-1]
         x1 = tail.x * f
         return Hole("sting", (x1 + 2.0, 0.0, tail.z * f), (x1 - depth, 0.0, tail.z * f), size)
-    from .junction import body_loops
+    from geomgen.geometry.junction import body_loops
 
     x = layout.sizing.wing.mgc_quarter_chord[0]
     loops, _ = body_loops(body, np.array([x]))

@@ -25,7 +25,7 @@ from typing import Any
 
 import numpy as np
 
-from . import __version__
+from geomgen import __version__
 
 MANIFEST = "manifest.json"
 #: a temporary entry folder older than this (s) was left by a killed run (SIGKILL, power

@@ -7,10 +7,10 @@ import json
 import math
 from typing import Any
 
-from . import __version__
-from .junction import area_between
-from .layout import Layout, SurfaceLayout
-from .units import SI_UNITS, to_output
+from geomgen import __version__
+from geomgen.design.units import SI_UNITS, to_output
+from geomgen.geometry.junction import area_between
+from geomgen.geometry.layout import Layout, SurfaceLayout
 
 CAUTION = (
     "CAUTION: geomgen output is a design aid. It is not an airworthiness, structural or "
@@ -81,7 +81,7 @@ def report_data(layout: Layout) -> dict[str, Any]:
 
 
 def _body_data(layout: Layout) -> dict[str, Any]:
-    from . import fuselage
+    from geomgen.shapes import fuselage
 
     body = layout.body
     assert body is not None

@@ -18,12 +18,13 @@ from xml.etree import ElementTree
 import numpy as np
 import trimesh
 
-from . import cad, fuselage
-from .fuselage import BodyStation
-from .junction import area_between, contains, station_of
-from .layout import fixed_part_name
-from .sections import volume_from_sections
-from .tolerances import TOLERANCES
+from geomgen.checks.tolerances import TOLERANCES
+from geomgen.geometry.junction import area_between, contains, station_of
+from geomgen.geometry.layout import fixed_part_name
+from geomgen.geometry.sections import volume_from_sections
+from geomgen.shapes import fuselage
+from geomgen.shapes.fuselage import BodyStation
+from geomgen.solids import cad
 
 MM = cad.MM
 

@@ -16,7 +16,7 @@ import re
 from collections.abc import Mapping
 from datetime import UTC, date, datetime
 
-from .errors import InputError
+from geomgen.errors import InputError
 
 #: the date of a design that gives none, with no SOURCE_DATE_EPOCH set
 FALLBACK = datetime(2000, 1, 1, tzinfo=UTC)

@@ -27,11 +27,18 @@ from email.utils import format_datetime
 from pathlib import Path
 from typing import Any
 
-from . import __version__
-from .layout import PART_NAMES, CornerLabel, Layout, SurfaceLayout, corner_labels, place
-from .report import CAUTION
-from .stamp import output_time
-from .units import to_output
+from geomgen import __version__
+from geomgen.design.units import to_output
+from geomgen.geometry.layout import (
+    PART_NAMES,
+    CornerLabel,
+    Layout,
+    SurfaceLayout,
+    corner_labels,
+    place,
+)
+from geomgen.outputs.report import CAUTION
+from geomgen.store.stamp import output_time
 
 Point = tuple[float, float, float]
 Page = tuple[float, float]  # paper position, mm from the sheet's lower-left corner
@@ -162,7 +169,7 @@ def _body_outlines(layout: Layout) -> dict[str, tuple[Point, ...]]:
     spec = layout.sizing.design.fuselage
     if spec is None:
         return {}
-    from .fuselage import expand, section_area, section_points
+    from geomgen.shapes.fuselage import expand, section_area, section_points
 
     st = expand(spec)
     plan = [(s.x, s.width / 2, s.z) for s in st] + [(s.x, -s.width / 2, s.z) for s in st[::-1]]

@@ -20,10 +20,10 @@ from typing import Any
 
 import numpy as np
 
-from . import __version__
-from .layout import Layout, corner_labels
-from .report import CAUTION, SURFACE_TITLES, report_data
-from .units import OUTPUT_UNITS, SI_UNITS, to_output
+from geomgen import __version__
+from geomgen.design.units import OUTPUT_UNITS, SI_UNITS, to_output
+from geomgen.geometry.layout import Layout, corner_labels
+from geomgen.outputs.report import CAUTION, SURFACE_TITLES, report_data
 
 VENDOR = Path(__file__).resolve().parent / "vendor" / "three-0.147.0"
 VENDOR_SCRIPTS = ("three.min.js", "OrbitControls.js")

@@ -20,7 +20,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from .design import BodyStation, FuselageSpec, ParametricBody
+from geomgen.design import BodyStation, FuselageSpec, ParametricBody
 
 __all__ = [
     "BodyStation",

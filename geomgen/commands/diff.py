@@ -17,7 +17,7 @@ import math
 from pathlib import Path
 from typing import Any
 
-from .errors import InputError
+from geomgen.errors import InputError
 
 #: absolute floor below which a difference is rounding noise (SI units)
 ABS_FLOOR = 1e-12
@@ -63,8 +63,8 @@ def _read_json(path: Path) -> dict[str, Any]:
 
 
 def _design_report(path: Path) -> dict[str, Any]:
-    from .pipeline import _size
-    from .report import report_data
+    from geomgen.commands.pipeline import _size
+    from geomgen.outputs.report import report_data
 
     _, layout, _ = _size(path)
     # through JSON, so that the mapping holds exactly what report.json would hold

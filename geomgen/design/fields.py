@@ -14,7 +14,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Any
 
-from .units import DIMENSIONS, OUTPUT_UNITS, UnitParseError, parse_quantity
+from geomgen.design.units import DIMENSIONS, OUTPUT_UNITS, UnitParseError, parse_quantity
 
 
 class FieldError(ValueError):

@@ -15,15 +15,15 @@ from __future__ import annotations
 
 import dataclasses
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
-from . import fuselage
-from .design import BodyStation
-from .errors import InputError
-from .layout import Layout, SurfaceLayout, place
-from .sizing import SurfaceSizing, wetted_area
+from geomgen.design import BodyStation
+from geomgen.errors import InputError
+from geomgen.geometry.layout import Layout, SurfaceLayout, place
+from geomgen.geometry.mount import Junction
+from geomgen.shapes import fuselage
+from geomgen.sizing.aircraft import SurfaceSizing, wetted_area
 
 #: the solid's root section lies this fraction of the root chord inside the body side, measured
 #: from the innermost point where the section's surface meets the body (common practice: a few
@@ -35,22 +35,6 @@ LOOP_POINTS = 256
 _CHORD_SAMPLES = 41
 #: a fin may reach down to the body by at most this fraction of its root chord
 _MAX_EXTENSION = 0.5
-
-
-@dataclass(frozen=True)
-class Junction:
-    """One surface on the body (m, m^2). Areas of a symmetric surface are both halves."""
-
-    key: str
-    side_min: float  # least station of the body side along the root chord line
-    side_max: float  # greatest
-    skin_min: float  # least station where the root section's skin meets the body
-    mount_s: float  # station of the solid's root section (inside the body)
-    root_inside: bool  # the solid's root section lies wholly inside the body (a closed joint)
-    reference_area: float  # the sized (theoretical) area
-    exposed_area: float  # planform outboard of the body side
-    exposed_wetted_area: float  # Raymer's estimate on the exposed area
-    side_line: tuple[tuple[float, float], ...]  # (x, s) along the root chord, aircraft-frame x
 
 
 # --- the body at any x ------------------------------------------------------------------------
@@ -267,7 +251,7 @@ def mount(layout: Layout, dirs: tuple = (), section_points: int = 61) -> Layout:
     spec = layout.sizing.design.fuselage
     if spec is None:
         return layout
-    from .sections import unit_section
+    from geomgen.geometry.sections import unit_section
 
     stations = fuselage.expand(spec)
     source = layout.sizing.design.source
