@@ -159,12 +159,7 @@ def _junction(
     line = _chord_line(_CHORD_SAMPLES)
     s_line = _body_side(ss, stations, line, np.zeros(len(line)))
     if np.all(np.isnan(s_line)):
-        raise InputError(
-            f"the root chord does not meet the fuselage (check {key}.apex against the "
-            f"fuselage's stations and sizes)",
-            source=source,
-            path=f"{key}.apex",
-        )
+        raise _off_body(ss, stations, source)
     # where the chord runs past the body's nose or tail the surface is exposed to its root
     s_line = np.where(np.isnan(s_line), 0.0, s_line)
     side = "centre" if not pf.symmetric else "right"
@@ -212,6 +207,65 @@ def _junction(
         exposed_wetted_area=wetted_area(halves * exposed, ss.thickness_ratio),
         side_line=tuple((float(x), float(s)) for x, s in zip(side_x, s_line, strict=True)),
     )
+
+
+def _mm_up(length: float) -> int:
+    """A length in whole millimetres, rounded up (m -> mm)."""
+    return math.ceil(length * 1000.0 - 1e-6)
+
+
+def _off_body(ss: SurfaceSizing, stations: tuple[BodyStation, ...], source: str) -> InputError:
+    """The refusal of a surface whose root chord misses the body, with where the chord and the
+    body lie (aircraft-frame x, z in m) and the changes that would mount it."""
+    key = ss.key
+    side = "centre" if not ss.planform.symmetric else "right"
+    root = place(ss, side, 0.0, _chord_line(_CHORD_SAMPLES))
+    x_le, x_te = float(root[:, 0].min()), float(root[:, 0].max())
+    nose, end = stations[0].x, stations[-1].x
+    where = f"the root chord (x = {x_le:.3f} to {x_te:.3f} m) does not meet the fuselage:"
+    if x_le >= end:
+        short = x_te - end
+        ways = [f"make the fuselage {_mm_up(short)} mm longer"]
+        if ss.tail_arm is not None:
+            kind = "optimum" if ss.spec.tail_arm is None else "given"
+            where += f" placed by the {kind} tail arm of {ss.tail_arm:.3f} m, it"
+            ways.append(f"give {key}.tail_arm at most {ss.tail_arm - short:.3f} m")
+            ways.append('let the body follow the tails (fuselage.end_behind_tails: "0.1 m")')
+        else:
+            where += " it"
+            ways.append(f"move {key}.apex.x at least {_mm_up(short)} mm forward")
+        return InputError(
+            f"{where} lies behind the body's end (x = {end:.3f} m); " + ", or ".join(ways),
+            source=source,
+            path=f"{key}.tail_arm" if ss.tail_arm is not None else f"{key}.apex.x",
+        )
+    if x_te <= nose:
+        return InputError(
+            f"{where} it lies ahead of the body's nose (x = {nose:.3f} m); move {key}.apex.x "
+            f"at least {_mm_up(nose - x_le)} mm aft",
+            source=source,
+            path=f"{key}.apex.x",
+        )
+    # within the body's length but above or below it
+    xs = np.clip(root[:, 0], nose, end)
+    loops, _ = body_loops(stations, xs)
+    top = float(loops[..., 1].max(axis=1).max())
+    bottom = float(loops[..., 1].min(axis=1).min())
+    z = float(root[:, 2].mean())
+    if z > top:
+        change = f"lower {key}.apex.z by at least {_mm_up(z - top)} mm"
+        words = (
+            f"passes above the fuselage (z = {z:.3f} m; its top along the chord is at "
+            f"most z = {top:.3f} m)"
+        )
+    else:
+        change = f"raise {key}.apex.z by at least {_mm_up(bottom - z)} mm"
+        words = (
+            f"passes below the fuselage (z = {z:.3f} m; its bottom along the chord is "
+            f"at least z = {bottom:.3f} m)"
+        )
+    # (the path names the apex as a whole: its x may be the better change for a wing)
+    return InputError(f"{where} {words}; {change}", source=source, path=f"{key}.apex")
 
 
 def fuselage_contains_section(
