@@ -12,7 +12,7 @@ from designs import PROFILES, make_design, trapezoid_document
 
 from geomgen.design import BodyStation
 from geomgen.errors import InputError
-from geomgen.geometry import junction
+from geomgen.geometry import body_side, junction
 from geomgen.geometry.layout import lay_out
 from geomgen.sizing.aircraft import size
 
@@ -128,7 +128,7 @@ def test_contains_agrees_with_the_circle() -> None:
     pts = rng.uniform([-2.0, -0.6, AXIS_Z - 0.6], [7.0, 0.6, AXIS_Z + 0.6], size=(4000, 3))
     r = np.hypot(pts[:, 1], pts[:, 2] - AXIS_Z)
     expected = (r < R) & (pts[:, 0] >= -1.0) & (pts[:, 0] <= 6.0)
-    got = junction.contains(stations, pts)
+    got = body_side.contains(stations, pts)
     # the 256-point polygon lies within R (1 - cos(pi/256)) = 3e-5 m of the circle
     clear = np.abs(r - R) > 1e-4
     assert np.array_equal(got[clear], expected[clear])

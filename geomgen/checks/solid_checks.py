@@ -19,7 +19,8 @@ import numpy as np
 import trimesh
 
 from geomgen.checks.tolerances import TOLERANCES
-from geomgen.geometry.junction import area_between, contains, station_of
+from geomgen.geometry.body_side import contains, station_of
+from geomgen.geometry.junction import area_between
 from geomgen.geometry.layout import fixed_part_name
 from geomgen.geometry.sections import volume_from_sections
 from geomgen.shapes import fuselage

@@ -20,7 +20,9 @@ import numpy as np
 
 from geomgen.design import BodyStation
 from geomgen.errors import InputError
-from geomgen.geometry.layout import Layout, SurfaceLayout, place
+from geomgen.geometry.body_side import body_loops, body_side, contains
+from geomgen.geometry.frame import place
+from geomgen.geometry.layout import Layout, SurfaceLayout
 from geomgen.geometry.mount import Junction
 from geomgen.shapes import fuselage
 from geomgen.sizing.aircraft import SurfaceSizing, wetted_area
@@ -29,92 +31,10 @@ from geomgen.sizing.aircraft import SurfaceSizing, wetted_area
 #: from the innermost point where the section's surface meets the body (common practice: a few
 #: per cent of the chord is enough to close a union and small enough to stay clear of the far side)
 OVERLAP_FRACTION = 0.02
-#: loop points of the body sections used here (the body loft uses the same blend of stations)
-LOOP_POINTS = 256
 #: chord fractions sampled along the root chord
 _CHORD_SAMPLES = 41
 #: a fin may reach down to the body by at most this fraction of its root chord
 _MAX_EXTENSION = 0.5
-
-
-# --- the body at any x ------------------------------------------------------------------------
-
-
-def body_loops(stations: tuple[BodyStation, ...], xq: np.ndarray, n: int = LOOP_POINTS):
-    """Closed section loops of the body at each x in ``xq``: (len(xq), n, 2) (y, z), m, and a
-    mask of the x that lie within the body's length."""
-    xq = np.asarray(xq, dtype=float)
-    x0, x1 = stations[0].x, stations[-1].x
-    within = (xq >= x0) & (xq <= x1)
-    _, loops, _ = fuselage._blend(stations, np.clip(xq, x0, x1), False, n)
-    return loops, within
-
-
-def _crossings(loops: np.ndarray, along: int, at: np.ndarray) -> np.ndarray:
-    """Greatest coordinate ``along`` (0: y, 1: z) where each loop crosses the line on which
-    the other coordinate equals ``at`` (one value per loop); NaN where it does not cross."""
-    other = 1 - along
-    a, b = loops, np.roll(loops, -1, axis=1)
-    ca, cb = a[..., other] - at[:, None], b[..., other] - at[:, None]
-    crosses = (ca <= 0.0) != (cb <= 0.0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        t = ca / (ca - cb)
-    value = a[..., along] + t * (b[..., along] - a[..., along])
-    value = np.where(crosses, value, -np.inf)
-    best = value.max(axis=1)
-    return np.where(np.isfinite(best), best, np.nan)
-
-
-def contains(stations: tuple[BodyStation, ...], points: np.ndarray) -> np.ndarray:
-    """Whether each point (N, 3), m, lies inside the body: within its length and inside the
-    section loop at its x (even-odd rule)."""
-    pts = np.asarray(points, dtype=float).reshape(-1, 3)
-    if len(pts) == 0:
-        return np.zeros(0, dtype=bool)
-    loops, within = body_loops(stations, pts[:, 0])
-    y, z = pts[:, 1][:, None], pts[:, 2][:, None]
-    a, b = loops, np.roll(loops, -1, axis=1)
-    straddle = (a[..., 1] > z) != (b[..., 1] > z)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        y_cross = a[..., 0] + (z - a[..., 1]) * (b[..., 0] - a[..., 0]) / (b[..., 1] - a[..., 1])
-    inside = (np.count_nonzero(straddle & (y_cross > y), axis=1) % 2) == 1
-    return inside & within
-
-
-# --- one surface ---------------------------------------------------------------------------------
-
-
-def station_of(ss: SurfaceSizing, side: str, points: np.ndarray) -> np.ndarray:
-    """Spanwise station of aircraft-frame points (N, 3) on a surface side (m)."""
-    if not ss.planform.symmetric:
-        return points[:, 2] - ss.apex_z
-    return points[:, 1] if side == "right" else -points[:, 1]
-
-
-def _body_side(
-    ss: SurfaceSizing, stations: tuple[BodyStation, ...], unit: np.ndarray, guess: np.ndarray
-) -> np.ndarray:
-    """Station s at which each unit-chord point (x/c, y/c) of the section placed at s lies on
-    the body surface (right side of a symmetric surface), by fixed-point iteration: placing
-    the section moves it only slightly out of its plane as s changes (dihedral, taper)."""
-    fin = not ss.planform.symmetric
-    side = "centre" if fin else "right"
-    s = guess.astype(float).copy()
-    for _ in range(6):
-        pts = np.array([place(ss, side, si, p[None, :])[0] for si, p in zip(s, unit, strict=True)])
-        loops, within = body_loops(stations, pts[:, 0])
-        if fin:  # the body's top above the point's butt line
-            found = _crossings(loops, 1, pts[:, 1]) - ss.apex_z
-        else:  # the body's side at the point's water line
-            found = _crossings(loops, 0, pts[:, 2])
-        found = np.where(within, found, np.nan)
-        if np.all(np.isnan(found)):
-            return found
-        done = np.nanmax(np.abs(found - s)) < 1e-7
-        s = np.where(np.isnan(found), s, found)
-        if done:
-            break
-    return np.where(np.isnan(found), np.nan, s)
 
 
 def _chord_line(n: int) -> np.ndarray:
@@ -157,7 +77,7 @@ def _junction(
     pf = ss.planform
     key = ss.key
     line = _chord_line(_CHORD_SAMPLES)
-    s_line = _body_side(ss, stations, line, np.zeros(len(line)))
+    s_line = body_side(ss, stations, line, np.zeros(len(line)))
     if np.all(np.isnan(s_line)):
         raise _off_body(ss, stations, source)
     # where the chord runs past the body's nose or tail the surface is exposed to its root
@@ -167,7 +87,7 @@ def _junction(
         [place(ss, side, s, p[None, :])[0][0] for s, p in zip(s_line, line, strict=True)]
     )
     surface = np.vstack([unit_upper, unit_lower])
-    s_surface = _body_side(ss, stations, surface, np.full(len(surface), float(s_line.mean())))
+    s_surface = body_side(ss, stations, surface, np.full(len(surface), float(s_line.mean())))
     overhang = bool(np.any(np.isnan(s_surface)))
     mount = float(np.nanmin(s_surface)) - OVERLAP_FRACTION * pf.root_chord
     if overhang:
@@ -286,7 +206,7 @@ def _check_controls_outboard(
         spec = next(x for x in ss.spec.controls if x.kind == c.kind)
         f0 = c.hinge[0].chord_fraction
         unit = np.column_stack([np.linspace(f0, 1.0, 9), np.zeros(9)])
-        s_side = _body_side(ss, stations, unit, np.full(9, c.s_start))
+        s_side = body_side(ss, stations, unit, np.full(9, c.s_start))
         if np.all(np.isnan(s_side)):
             continue  # the body ends ahead of the moving part
         need = float(np.nanmax(s_side)) + spec.side_gap

@@ -540,7 +540,7 @@ def body_plan(layout: Layout, spec: ModelSpec, k: float, surface_holes: list[Hol
                 (centre[0] - h.size - JOINT_CLEARANCE, centre[0] + h.size + JOINT_CLEARANCE)
             )
     cuts = plan_cuts(start, end, longest, avoid)
-    from geomgen.geometry.junction import body_loops
+    from geomgen.geometry.body_side import body_loops
 
     joints = []
     r = spec.dowel_diameter * 500.0
@@ -574,7 +574,7 @@ def _sting(layout: Layout, spec: ModelSpec, f: float) -> Hole:
         tail = body[-1]
         x1 = tail.x * f
         return Hole("sting", (x1 + 2.0, 0.0, tail.z * f), (x1 - depth, 0.0, tail.z * f), size)
-    from geomgen.geometry.junction import body_loops
+    from geomgen.geometry.body_side import body_loops
 
     x = layout.sizing.wing.mgc_quarter_chord[0]
     loops, _ = body_loops(body, np.array([x]))

@@ -1,0 +1,49 @@
+"""Placing unit-chord section points on a surface in the aircraft frame (pure numpy).
+
+Aircraft frame: x aft, y right (starboard), z up, origin at the user's datum, metres. The
+lowest module of the geometry stage: layout, sections, the body-side queries and the junction
+all place points through ``place``.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from geomgen.sizing.aircraft import SurfaceSizing
+
+
+def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndarray:
+    """Place section points given in unit-chord coordinates (x/c, y/c) at spanwise position s.
+
+    The section is first turned by its local twist about its own ``twist_axis`` point, then the
+    whole surface is turned rigidly by the incidence about a spanwise axis through the root's
+    ``twist_axis`` point (so an untwisted surface stays a rigid body and straight lines on it,
+    such as a common hinge, stay straight). Returns an (N, 3) array in the aircraft frame (m);
+    ``side`` is right, left or centre (fin).
+    """
+    pts = np.asarray(points, dtype=float).reshape(-1, 2)
+    pf, spec = ss.planform, ss.spec
+    x_le, chord, rise, twist = pf.at(s)
+    a = spec.twist_axis
+    # twist about the section's own axis point (local frame: x aft from apex, n normal)
+    u = (pts[:, 0] - a) * chord
+    v = pts[:, 1] * chord
+    ct, st = math.cos(twist), math.sin(twist)
+    x = x_le + a * chord + u * ct + v * st
+    n = rise - u * st + v * ct
+    # incidence: rigid turn about the root's axis point (x = a c_root, n = 0), nose up positive
+    x0 = a * pf.root_chord
+    ci, si = math.cos(spec.incidence), math.sin(spec.incidence)
+    xr = x0 + (x - x0) * ci + n * si
+    nr = -(x - x0) * si + n * ci
+    out = np.empty((len(pts), 3))
+    out[:, 0] = ss.apex_x + xr
+    if pf.symmetric:
+        out[:, 1] = s if side == "right" else -s
+        out[:, 2] = ss.apex_z + nr
+    else:
+        out[:, 1] = nr
+        out[:, 2] = ss.apex_z + s
+    return out
