@@ -25,7 +25,7 @@ from test_properties import _check_invariants, _sized, designs  # noqa: E402
 
 from geomgen.checks import solid_checks as checks  # noqa: E402
 from geomgen.errors import GeometryError  # noqa: E402
-from geomgen.solids import cad  # noqa: E402
+from geomgen.solids import assembly  # noqa: E402
 
 
 def main() -> int:
@@ -56,7 +56,7 @@ def main() -> int:
             _check_invariants(doc, *result)
             t0 = time.perf_counter()
             try:
-                built = cad.build(result[1], ())
+                built = assembly.build(result[1], ())
             except GeometryError as err:
                 outcome["geometry error"] += 1
                 if not err.part:

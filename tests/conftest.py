@@ -20,24 +20,24 @@ def demo_path() -> Path:
 @dataclass(frozen=True)
 class CliRun:
     """One in-process ``geomgen build`` run: exit code, printed text, outputs, and the
-    ``cad.Build`` the pipeline made (caught on its way through, so tests can look at the
+    ``Build`` the pipeline made (caught on its way through, so tests can look at the
     in-memory solids without building them a second time)."""
 
     code: int
     stdout: str
     stderr: str
     out_root: Path
-    build: Any  # geomgen.solids.cad.Build, or None when the run stopped before building
+    build: Any  # geomgen.solids.records.Build, or None when the run stopped before building
 
 
 def run_build_cli(argv: list[str], out_root: Path) -> CliRun:
     """``geomgen build ARGV --out OUT_ROOT`` in-process, catching the Build object."""
     # imported here: cadquery costs ~2 s, and collecting the fast tests must not pay for it
     from geomgen import cli
-    from geomgen.solids import cad
+    from geomgen.solids import assembly
 
     caught: dict[str, Any] = {}
-    real_build = cad.build
+    real_build = assembly.build
 
     def spy(*args: Any, **kwargs: Any) -> Any:
         caught["build"] = real_build(*args, **kwargs)
@@ -49,7 +49,7 @@ def run_build_cli(argv: list[str], out_root: Path) -> CliRun:
         contextlib.redirect_stdout(out),
         contextlib.redirect_stderr(err),
     ):
-        mp.setattr(cad, "build", spy)
+        mp.setattr(assembly, "build", spy)
         code = cli.main(["build", *argv, "--out", str(out_root)])
     return CliRun(code, out.getvalue(), err.getvalue(), out_root, caught.get("build"))
 

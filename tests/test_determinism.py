@@ -117,19 +117,19 @@ def test_source_date_epoch_sets_the_step_and_dxf_stamps(
 ) -> None:
     import cadquery as cq
 
-    from geomgen.solids import cad
+    from geomgen.solids import records, step
 
-    box = cad.Part("fin", "fin", "vertical_tail", "centre", cq.Solid.makeBox(10, 20, 30),
+    box = records.Part("fin", "fin", "vertical_tail", "centre", cq.Solid.makeBox(10, 20, 30),
                    False, 0.0, 10.0)  # fmt: skip
-    box2 = cad.Part("rudder", "rudder", "vertical_tail", "centre",
+    box2 = records.Part("rudder", "rudder", "vertical_tail", "centre",
                     cq.Solid.makeBox(5, 5, 5, cq.Vector(20, 0, 0)), True, 0.0, 5.0)  # fmt: skip
     layout = lay_out(size(make_design(demo_document())))
 
     monkeypatch.delenv(stamp.ENV_KEY, raising=False)
-    cad.write_step([box, box2], tmp_path / "plain.step", "box")
+    step.write_step([box, box2], tmp_path / "plain.step", "box")
     shopfiles.write_plan_dxf(layout, tmp_path / "plain.dxf")
     monkeypatch.setenv(stamp.ENV_KEY, str(EPOCH))
-    cad.write_step([box, box2], tmp_path / "epoch.step", "box")
+    step.write_step([box, box2], tmp_path / "epoch.step", "box")
     shopfiles.write_plan_dxf(layout, tmp_path / "epoch.dxf")
 
     assert _step_time(tmp_path / "plain.step") == "2000-01-01T00:00:00+00:00"  # no design
@@ -145,7 +145,7 @@ def test_source_date_epoch_sets_the_step_and_dxf_stamps(
     back = cq.Assembly.importStep(str(tmp_path / "epoch.step"))
     colours = {name.split("/")[-1]: c.color.toTuple()[:3] for name, c in back.traverse() if c.color}
     for name in ("fin", "rudder"):
-        assert colours[name] == pytest.approx(cad.COLOURS[name], abs=1e-6)
+        assert colours[name] == pytest.approx(step.COLOURS[name], abs=1e-6)
 
 
 def test_output_time_order_of_precedence() -> None:

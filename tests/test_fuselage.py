@@ -232,11 +232,13 @@ def test_elliptic_cylinder_and_cone() -> None:
 
 
 @pytest.fixture(scope="module")
-def cad():
+def solids():
     # imported here: cadquery costs ~2 s, and collecting the fast tests must not pay for it
-    from geomgen.solids import cad
+    import geomgen.solids.body
+    import geomgen.solids.kernel
+    import geomgen.solids.meshing
 
-    return cad
+    return geomgen.solids
 
 
 @pytest.fixture(scope="module")
@@ -246,19 +248,19 @@ def checks():
     return checks
 
 
-def test_cad_cylinder_and_two_cones(cad, checks) -> None:
-    solid = cad.build_fuselage(CONES, 64, ruled=True)
+def test_cad_cylinder_and_two_cones(solids, checks) -> None:
+    solid = solids.body.build_fuselage(CONES, 64, ruled=True)
     assert len(solid.Solids()) == 1 and solid.isValid()
     # periodic cubic splines through 64 points of each circle are within ~1e-7 of the circle
-    assert cad.volume(solid) == pytest.approx(CONES_VOLUME * MM**3, rel=1e-5)
-    assert cad.surface_area(solid) == pytest.approx(CONES_AREA * MM**2, rel=1e-5)
+    assert solids.kernel.volume(solid) == pytest.approx(CONES_VOLUME * MM**3, rel=1e-5)
+    assert solids.kernel.surface_area(solid) == pytest.approx(CONES_AREA * MM**2, rel=1e-5)
     results = checks.fuselage_checks(solid, CONES, TESSELLATION_MM, ruled=True)
     assert [c.name for c in results if not c.passed] == []
 
 
-def test_cad_smooth_parametric_body_matches_its_section_integrals(cad, checks) -> None:
+def test_cad_smooth_parametric_body_matches_its_section_integrals(solids, checks) -> None:
     stations = fu.expand(make_design({**body_document(), "fuselage": DEMO_BODY}).fuselage)
-    solid = cad.build_fuselage(stations, 64)
+    solid = solids.body.build_fuselage(stations, 64)
     results = {c.name: c for c in checks.fuselage_checks(solid, stations, TESSELLATION_MM)}
     assert all(c.passed for c in results.values()), results
     # the check allows 1 %; on this body the loft agrees within 1e-5 (measured 1e-6)
@@ -283,7 +285,7 @@ def test_cad_smooth_parametric_body_matches_its_section_integrals(cad, checks) -
     assert z1 == pytest.approx(1150.0, rel=3e-3)  # centre 600 mm + half height 550 mm
 
 
-def test_cad_body_of_mixed_shapes(cad, checks) -> None:
+def test_cad_body_of_mixed_shapes(solids, checks) -> None:
     """Stations of different shapes blend point by point; the integrals then use polygons of
     the blended loops."""
     stations = (
@@ -294,24 +296,24 @@ def test_cad_body_of_mixed_shapes(cad, checks) -> None:
         station(4.5, 0.3, 0.35, z=0.7),
         station(5.5, 0.12, 0.12, z=0.75),
     )
-    solid = cad.build_fuselage(stations, 64)
+    solid = solids.body.build_fuselage(stations, 64)
     results = checks.fuselage_checks(solid, stations, TESSELLATION_MM)
     assert [c.name for c in results if not c.passed] == []
     for c in results[2:]:
         assert c.measured == pytest.approx(c.expected, rel=1e-3)
 
 
-def test_body_stl_is_closed(cad, checks, tmp_path: Path) -> None:
+def test_body_stl_is_closed(solids, checks, tmp_path: Path) -> None:
     """BRepMesh leaves a zero-area triangle at a pointed tip; the body's STL leaves it out."""
-    solid = cad.build_fuselage(CONES, 64, ruled=True)
+    solid = solids.body.build_fuselage(CONES, 64, ruled=True)
     path = tmp_path / "fuselage.stl"
-    cad.write_body_stl(solid, path, TESSELLATION_MM)
-    results, _ = checks.stl_checks("fuselage", path, cad.volume(solid))
+    solids.meshing.write_body_stl(solid, path, TESSELLATION_MM)
+    results, _ = checks.stl_checks("fuselage", path, solids.kernel.volume(solid))
     assert [c.name for c in results if not c.passed] == []
 
 
-def test_fuselage_check_fails_for_a_different_body(cad, checks) -> None:
-    solid = cad.build_fuselage(CONES, 64, ruled=True)
+def test_fuselage_check_fails_for_a_different_body(solids, checks) -> None:
+    solid = solids.body.build_fuselage(CONES, 64, ruled=True)
     wider = tuple(dataclasses.replace(s, width=s.width * 1.03) for s in CONES)
     failed = [c.name for c in checks.fuselage_checks(solid, wider, 4.0, ruled=True) if not c.passed]
     assert failed == [

@@ -197,16 +197,15 @@ def test_a_fin_slightly_above_the_body_is_extended_down_to_it() -> None:
 @pytest.fixture(scope="module")
 def fin_build():
     """A fin on the cylinder, built with the CAD kernel, and its mesh (mm)."""
-    from geomgen.solids import cad
-
     doc = mid_wing_document()
     doc["vertical_tail"] = fin(AXIS_Z)
     layout = mounted(doc)
-    return layout, cad
+    return layout
 
 
-def _fin_checks(layout, cad, mount_s: float):
+def _fin_checks(layout, mount_s: float):
     from geomgen.checks import solid_checks as checks
+    from geomgen.solids import assembly, meshing
 
     sl = layout.surface("vertical_tail")
     j = dataclasses.replace(sl.junction, mount_s=mount_s)
@@ -217,22 +216,22 @@ def _fin_checks(layout, cad, mount_s: float):
             for s in layout.surfaces
         ),
     )
-    built = cad.build(moved, (PROFILES,), only={"fin"})
+    built = assembly.build(moved, (PROFILES,), only={"fin"})
     fin = next(p for p in built.parts if p.name == "fin")
-    meshes = {"fin": cad.mesh_arrays(fin.shape, 1.0)}
+    meshes = {"fin": meshing.mesh_arrays(fin.shape, 1.0)}
     return {c.name: c for c in checks.junction_checks(built, meshes)}
 
 
 def test_junction_checks_pass_for_the_mounted_fin(fin_build) -> None:
-    layout, cad = fin_build
-    results = _fin_checks(layout, cad, layout.surface("vertical_tail").mount_s)
+    layout = fin_build
+    results = _fin_checks(layout, layout.surface("vertical_tail").mount_s)
     assert len(results) == 2 and all(c.passed for c in results.values()), results
 
 
 def test_junction_checks_catch_a_fin_through_the_far_side(fin_build) -> None:
     # forced to start 1.5 R below the axis, the fin comes out of the body's bottom
-    layout, cad = fin_build
-    results = _fin_checks(layout, cad, -1.5 * R)
+    layout = fin_build
+    results = _fin_checks(layout, -1.5 * R)
     pierce = results["mesh points outside the body inboard of its side (far-side piercing)"]
     assert not pierce.passed and pierce.measured > 0
     root = results["root-end mesh points outside the body"]

@@ -151,9 +151,9 @@ def test_demo_model_volumes_scale_by_the_cube(demo_model: Path, demo_build) -> N
         for p in (demo_model / "stl").glob("wing-right-*.stl")
     ]
     full = next(p for p in demo_build.build.parts if p.name == "wing-right")
-    from geomgen.solids import cad
+    from geomgen.solids import kernel
 
-    assert sum(pieces) == pytest.approx(cad.volume(full.shape) * 1e-3, rel=0.02)
+    assert sum(pieces) == pytest.approx(kernel.volume(full.shape) * 1e-3, rel=0.02)
     report = (demo_model / "model-report.md").read_text(encoding="utf-8")
     assert "Scale 1:10" in report and "Reynolds" in report and "CAUTION" in report
 
@@ -252,13 +252,13 @@ def test_no_scale_anywhere_is_refused(tmp_path: Path, capsys: pytest.CaptureFixt
 def test_scaling_takes_volumes_by_the_cube_and_areas_by_the_square(demo_build) -> None:
     # geometric similarity: a solid scaled by k has k^3 its volume and k^2 its surface area,
     # exactly (up to the integration tolerance: model volumes are integrated to 1e-5)
-    from geomgen.solids import cad
+    from geomgen.solids import kernel, printed
 
     fin = next(p for p in demo_build.build.parts if p.name == "fin").shape
     k = 1.0 / 12.0
-    small = cad.scaled(fin, k, "fin")
-    assert cad.volume(small) == pytest.approx(cad.volume(fin) * k**3, rel=1e-5)
-    assert cad.surface_area(small) == pytest.approx(cad.surface_area(fin) * k**2, rel=1e-6)
+    small = printed.scaled(fin, k, "fin")
+    assert kernel.volume(small) == pytest.approx(kernel.volume(fin) * k**3, rel=1e-5)
+    assert kernel.surface_area(small) == pytest.approx(kernel.surface_area(fin) * k**2, rel=1e-6)
 
 
 def test_a_model_span_sets_the_scale() -> None:

@@ -1,4 +1,4 @@
-"""Mesh-side checks of the printable model pieces (geomgen/checks.py, "printable model pieces"):
+"""Mesh-side checks of the printable model pieces (geomgen/checks/piece_checks.py, threemf_io.py):
 3MF written and read back, oriented bounding boxes and the build volume, the print orientation,
 ray crossings, the wall around bores, the hole centres of a joint face and the checks built on
 them. Every expected value comes from exact geometry (boxes, prisms with regular-polygon
@@ -16,7 +16,7 @@ import numpy as np
 import pytest
 import trimesh
 
-from geomgen.checks import solid_checks as checks
+from geomgen.checks import piece_checks, threemf_io
 from geomgen.checks.tolerances import TOLERANCES
 
 # ------------------------------------------------------------------------------------------
@@ -171,8 +171,8 @@ def three_pieces():
 
 def test_3mf_round_trip_keeps_names_arrays_and_volumes(three_pieces, tmp_path):
     path = tmp_path / "pieces.3mf"
-    checks.write_3mf(three_pieces, path)
-    back = checks.read_3mf(path)
+    threemf_io.write_3mf(three_pieces, path)
+    back = threemf_io.read_3mf(path)
     # read back sorted by name
     assert list(back) == sorted(three_pieces)
     for name, (v, f) in three_pieces.items():
@@ -186,7 +186,7 @@ def test_3mf_round_trip_keeps_names_arrays_and_volumes(three_pieces, tmp_path):
 
 def test_3mf_model_says_millimetre_and_names_the_objects(three_pieces, tmp_path):
     path = tmp_path / "pieces.3mf"
-    checks.write_3mf(three_pieces, path)
+    threemf_io.write_3mf(three_pieces, path)
     with zipfile.ZipFile(path) as z:
         # 3MF Core Specification: the model part is /3D/3dmodel.model (named by the root
         # relationship) and <model unit="..."> gives the unit of all coordinates
@@ -202,8 +202,8 @@ def test_3mf_model_says_millimetre_and_names_the_objects(three_pieces, tmp_path)
 
 
 def test_3mf_is_byte_identical_run_after_run(three_pieces, tmp_path):
-    checks.write_3mf(three_pieces, tmp_path / "a.3mf")
-    checks.write_3mf(dict(reversed(list(three_pieces.items()))), tmp_path / "b.3mf")
+    threemf_io.write_3mf(three_pieces, tmp_path / "a.3mf")
+    threemf_io.write_3mf(dict(reversed(list(three_pieces.items()))), tmp_path / "b.3mf")
     assert (tmp_path / "a.3mf").read_bytes() == (tmp_path / "b.3mf").read_bytes()
 
 
@@ -215,7 +215,7 @@ def test_read_3mf_applies_the_placement_transform(tmp_path):
     scene.add_geometry(box, geom_name="moved", node_name="moved", transform=move)
     path = tmp_path / "moved.3mf"
     path.write_bytes(scene.export(file_type="3mf"))
-    v, _ = checks.read_3mf(path)["moved"]
+    v, _ = threemf_io.read_3mf(path)["moved"]
     np.testing.assert_allclose(v, np.asarray(box.vertices) + (10.0, -5.0, 2.5))
 
 
@@ -231,18 +231,20 @@ def test_oriented_box_of_a_turned_box_is_its_edges():
     turn[:3, :3] = rotation((1.0, 2.0, -0.5), 0.7)
     turn[:3, 3] = (5.0, -3.0, 40.0)
     box.apply_transform(turn)
-    np.testing.assert_allclose(checks.obb_extents(box.vertices, box.faces), [12, 31, 47], 1e-6)
+    np.testing.assert_allclose(
+        piece_checks.obb_extents(box.vertices, box.faces), [12, 31, 47], 1e-6
+    )
 
 
 def test_build_volume_rule():
     bed = (220.0, 220.0, 250.0)
     # a 240 mm bar fits standing up (250 mm height)
-    assert checks.fits_build_volume(np.array([2.0, 2.0, 240.0]), bed)
+    assert piece_checks.fits_build_volume(np.array([2.0, 2.0, 240.0]), bed)
     # a 260 mm bar would fit along the bed's 311 mm diagonal, but the rule places boxes
     # edge-parallel only, so it is reported as not fitting
-    assert not checks.fits_build_volume(np.array([2.0, 2.0, 260.0]), bed)
-    assert not checks.fits_build_volume(np.array([3.0, 225.0, 230.0]), bed)
-    assert checks.fits_build_volume(np.array([220.0, 220.0, 250.0]), bed)
+    assert not piece_checks.fits_build_volume(np.array([2.0, 2.0, 260.0]), bed)
+    assert not piece_checks.fits_build_volume(np.array([3.0, 225.0, 230.0]), bed)
+    assert piece_checks.fits_build_volume(np.array([220.0, 220.0, 250.0]), bed)
 
 
 def test_build_volume_rule_is_the_best_axis_parallel_placement():
@@ -252,17 +254,17 @@ def test_build_volume_rule_is_the_best_axis_parallel_placement():
         box = np.sort(rng.uniform(1, 300, 3))
         bed = rng.uniform(100, 300, 3)
         any_fits = any(np.all(box[list(p)] <= bed) for p in itertools.permutations(range(3)))
-        assert checks.fits_build_volume(box, bed) == any_fits
+        assert piece_checks.fits_build_volume(box, bed) == any_fits
 
 
 def test_print_orientation_of_a_plate_is_a_big_face():
     plate = trimesh.creation.box(extents=(100.0, 60.0, 2.0))
-    normal, area = checks.print_orientation(plate.vertices, plate.faces)
+    normal, area = piece_checks.print_orientation(plate.vertices, plate.faces)
     # two equal big faces: the one already facing down is chosen
     np.testing.assert_allclose(normal, [0, 0, -1], atol=1e-12)
     assert area == pytest.approx(6000.0)
     turn = rotation((0.3, -1.0, 0.4), 1.1)
-    normal, area = checks.print_orientation(plate.vertices @ turn.T, plate.faces)
+    normal, area = piece_checks.print_orientation(plate.vertices @ turn.T, plate.faces)
     assert abs(normal @ (turn @ [0, 0, 1.0])) == pytest.approx(1.0, abs=1e-9)
     assert area == pytest.approx(6000.0)
 
@@ -272,7 +274,7 @@ def test_print_orientation_of_a_wedge_is_its_slope():
     # 200 (back) and 20 sqrt(1000) = 632.5 mm^2 (the slope x/30 + z/10 = 1, normal (1, 0, 3))
     points = [(x, y, z) for x, z in [(0, 0), (30, 0), (0, 10)] for y in (0, 20)]
     wedge = trimesh.Trimesh(points).convex_hull
-    normal, area = checks.print_orientation(wedge.vertices, wedge.faces)
+    normal, area = piece_checks.print_orientation(wedge.vertices, wedge.faces)
     np.testing.assert_allclose(normal, np.array([1, 0, 3]) / math.sqrt(10), atol=1e-12)
     assert area == pytest.approx(20 * math.sqrt(1000))
 
@@ -280,17 +282,17 @@ def test_print_orientation_of_a_wedge_is_its_slope():
 def test_print_orientation_uses_the_hull_and_breaks_ties_downward():
     # the holed box's four 40 x 20 sides tie: the hull ignores the hole, -z wins the tie
     v, f = holed_box()
-    normal, area = checks.print_orientation(v, f)
+    normal, area = piece_checks.print_orientation(v, f)
     np.testing.assert_allclose(normal, [0, 0, -1], atol=1e-12)
     assert area == pytest.approx(800.0)
 
 
 def test_orientation_words():
-    assert checks.orientation_words([0, -1, 0]) == "inboard joint face down (face normal -y)"
-    assert checks.orientation_words([0, -1, 0], half="left").startswith("outboard joint face")
-    assert checks.orientation_words([0, 0, -2]) == "lower side down (face normal -z)"
-    assert checks.orientation_words([1, 0, 0]).startswith("aft (trailing-edge) side down")
-    tilted = checks.orientation_words(np.array([1, 0, 3]) / math.sqrt(10))
+    assert piece_checks.orientation_words([0, -1, 0]) == "inboard joint face down (face normal -y)"
+    assert piece_checks.orientation_words([0, -1, 0], half="left").startswith("outboard joint face")
+    assert piece_checks.orientation_words([0, 0, -2]) == "lower side down (face normal -z)"
+    assert piece_checks.orientation_words([1, 0, 0]).startswith("aft (trailing-edge) side down")
+    tilted = piece_checks.orientation_words(np.array([1, 0, 3]) / math.sqrt(10))
     assert tilted == "upper side down, tilted (face normal (+0.316, +0.000, +0.949))"
 
 
@@ -308,7 +310,7 @@ def cube():
 def test_ray_hits_on_a_cube(cube):
     origins = [(-2.0, 0.1, 0.2), (0.1, 0.2, 0.3), (-1.0, -1.0, 0.3), (-2.0, 3.0, 0.0)]
     directions = [(1.0, 0, 0), (0, 0, 5.0), (1.0, 1.0, 0), (1.0, 0, 0)]
-    hits = checks.ray_hits(*cube, np.array(origins), np.array(directions))
+    hits = piece_checks.ray_hits(*cube, np.array(origins), np.array(directions))
     # slab distances: in at x = -0.5, out at x = 0.5; from inside, out at z = 0.5
     np.testing.assert_allclose(hits[0], [1.5, 2.5], atol=1e-12)
     np.testing.assert_allclose(hits[1], [0.2], atol=1e-12)
@@ -319,12 +321,12 @@ def test_ray_hits_on_a_cube(cube):
 
 def test_ray_hits_from_inside_a_cube_against_slab_distances(cube, monkeypatch):
     # tiny blocks, so the chunked path is what is tested
-    monkeypatch.setattr(checks, "_RAY_PAIR_BUDGET", 50)
+    monkeypatch.setattr(piece_checks, "_RAY_PAIR_BUDGET", 50)
     rng = np.random.default_rng(3)
     origins = rng.uniform(-0.45, 0.45, (400, 3))
     directions = rng.normal(size=(400, 3))
     directions /= np.linalg.norm(directions, axis=1, keepdims=True)
-    hits = checks.ray_hits(*cube, origins, directions)
+    hits = piece_checks.ray_hits(*cube, origins, directions)
     exact = np.min((np.sign(directions) * 0.5 - origins) / directions, axis=1)
     assert all(len(h) == 1 for h in hits)
     np.testing.assert_allclose([h[0] for h in hits], exact, rtol=1e-12, atol=1e-12)
@@ -344,7 +346,7 @@ def test_ray_hits_through_a_sphere_are_a_chord(cube):
     d = rng.normal(size=(50, 3))
     d /= np.linalg.norm(d, axis=1, keepdims=True)
     origins = -20.0 * d  # 20 mm out, aimed through the centre
-    for hits in checks.ray_hits(v, f, origins, d):
+    for hits in piece_checks.ray_hits(v, f, origins, d):
         assert len(hits) == 2
         assert 20 - r - 1e-9 <= hits[0] <= 20 - inner + 1e-9
         assert 2 * inner - 1e-9 <= hits[1] - hits[0] <= 2 * r + 1e-9
@@ -362,10 +364,10 @@ def test_wall_around_a_round_hole_off_centre():
     start, end = (0.0, 2.0, 0.0), (40.0, 2.0, 0.0)
     n = 24
     # a vertex of the 24-gon toward +y: exactly 5
-    wall = checks.bore_wall(*holed_box(n=n, phase=0.0), start, end, 6.0)
+    wall = piece_checks.bore_wall(*holed_box(n=n, phase=0.0), start, end, 6.0)
     assert wall == pytest.approx(5.0, abs=1e-9)
     # the middle of an edge toward +y: exactly 5 + 3 (1 - cos(pi/24))
-    wall = checks.bore_wall(*holed_box(n=n, phase=math.pi / n), start, end, 6.0)
+    wall = piece_checks.bore_wall(*holed_box(n=n, phase=math.pi / n), start, end, 6.0)
     assert wall == pytest.approx(5.0 + 3 * (1 - math.cos(math.pi / n)), abs=1e-9)
     assert 5.0 <= wall <= 5.0 + 3 * (1 - math.cos(math.pi / n)) + 1e-12
 
@@ -373,17 +375,17 @@ def test_wall_around_a_round_hole_off_centre():
 def test_wall_around_a_square_hole_and_reversed_axis():
     # 6 mm square hole (corners at r = 3 sqrt 2, 45 deg), 2 mm off centre toward +y: 5 mm
     v, f = holed_box(n=4, phase=math.pi / 4, radius=3 * math.sqrt(2))
-    assert checks.bore_wall(v, f, (0, 2, 0), (40, 2, 0), 6.0) == pytest.approx(5.0, abs=1e-9)
-    assert checks.bore_wall(v, f, (40, 2, 0), (0, 2, 0), 6.0) == pytest.approx(5.0, abs=1e-9)
+    assert piece_checks.bore_wall(v, f, (0, 2, 0), (40, 2, 0), 6.0) == pytest.approx(5.0, abs=1e-9)
+    assert piece_checks.bore_wall(v, f, (40, 2, 0), (0, 2, 0), 6.0) == pytest.approx(5.0, abs=1e-9)
     # duplicated nodes change nothing
-    assert checks.bore_wall(*unmerged(v, f), (0, 2, 0), (40, 2, 0), 6.0) == pytest.approx(5.0)
+    assert piece_checks.bore_wall(*unmerged(v, f), (0, 2, 0), (40, 2, 0), 6.0) == pytest.approx(5.0)
 
 
 def test_wall_is_zero_where_the_hole_breaks_through():
     # the slot leaves the piece toward +y: rays that way meet nothing
-    assert checks.bore_wall(*channel(), (0, 0, 0), (40, 0, 0), 6.0) == 0.0
+    assert piece_checks.bore_wall(*channel(), (0, 0, 0), (40, 0, 0), 6.0) == 0.0
     # an axis that misses the hole (inside solid material) fails too
-    assert checks.bore_wall(*holed_box(), (0, -5, 0), (40, -5, 0), 6.0) == 0.0
+    assert piece_checks.bore_wall(*holed_box(), (0, -5, 0), (40, -5, 0), 6.0) == 0.0
 
 
 # ------------------------------------------------------------------------------------------
@@ -396,7 +398,7 @@ def test_joint_face_loops_are_the_outline_and_the_hole(split):
     v, f = holed_box(centre=(2.0, -1.5), n=24, x0=10.0)
     if split:
         v, f = unmerged(v, f)
-    loops = checks.plane_loop_centres(v, f, (10.0, 0, 0), (-1.0, 0, 0))
+    loops = piece_checks.plane_loop_centres(v, f, (10.0, 0, 0), (-1.0, 0, 0))
     assert len(loops) == 2
     (outline, outline_area), (hole, hole_area) = loops
     # the outline encloses the 20 x 20 square centred on the axis; the hole is a regular
@@ -406,7 +408,7 @@ def test_joint_face_loops_are_the_outline_and_the_hole(split):
     assert hole_area == pytest.approx(ngon_area(3.0, 24), rel=1e-12)
     np.testing.assert_allclose(hole, [10, 2, -1.5], atol=1e-9)
     # a plane the piece has no face in
-    assert checks.plane_loop_centres(v, f, (20.0, 0, 0), (1.0, 0, 0)) == []
+    assert piece_checks.plane_loop_centres(v, f, (20.0, 0, 0), (1.0, 0, 0)) == []
 
 
 def test_joint_with_a_shifted_hole(monkeypatch):
@@ -416,9 +418,9 @@ def test_joint_with_a_shifted_hole(monkeypatch):
     a = holed_box(centre=(2.0, 0.0), x0=0.0)
     for shift, ok in [(0.04, True), (0.06, False)]:
         b = holed_box(centre=(2.0, shift), x0=40.0)
-        holes_a = [c for c, _ in checks.plane_loop_centres(*a, (40, 0, 0), (1, 0, 0))[1:]]
-        holes_b = [c for c, _ in checks.plane_loop_centres(*b, (40, 0, 0), (-1, 0, 0))[1:]]
-        check = checks.hole_alignment_check("wing right joint 1-2", holes_a, holes_b, tol)
+        holes_a = [c for c, _ in piece_checks.plane_loop_centres(*a, (40, 0, 0), (1, 0, 0))[1:]]
+        holes_b = [c for c, _ in piece_checks.plane_loop_centres(*b, (40, 0, 0), (-1, 0, 0))[1:]]
+        check = piece_checks.hole_alignment_check("wing right joint 1-2", holes_a, holes_b, tol)
         assert check.passed is ok
         assert check.measured == pytest.approx(shift, abs=1e-9)
         assert check.part == "wing right joint 1-2"
@@ -427,11 +429,11 @@ def test_joint_with_a_shifted_hole(monkeypatch):
 def test_hole_alignment_pairs_and_counts():
     a = [np.array([0.0, 10.0, 0.0]), np.array([0.0, -10.0, 0.0])]
     b = [np.array([0.0, -10.0, 0.03]), np.array([0.0, 10.02, 0.0])]
-    check = checks.hole_alignment_check("j", a, b, 0.05)
+    check = piece_checks.hole_alignment_check("j", a, b, 0.05)
     assert check.passed and check.measured == pytest.approx(0.03)
-    check = checks.hole_alignment_check("j", a, b[:1], 0.05)
+    check = piece_checks.hole_alignment_check("j", a, b[:1], 0.05)
     assert not check.passed and check.measured == math.inf
-    assert checks.hole_alignment_check("j", [], [], 0.05).passed
+    assert piece_checks.hole_alignment_check("j", [], [], 0.05).passed
 
 
 # ------------------------------------------------------------------------------------------
@@ -442,7 +444,7 @@ def test_hole_alignment_pairs_and_counts():
 def test_model_piece_checks_pass_and_name_the_piece_when_they_fail():
     v, f = unmerged(*holed_box())
     bores = [("spar", (0.0, 2.0, 0.0), (40.0, 2.0, 0.0), 6.0)]
-    good = checks.model_piece_checks("wing right piece 1", v, f, (220, 220, 250), bores, 4.0)
+    good = piece_checks.model_piece_checks("wing right piece 1", v, f, (220, 220, 250), bores, 4.0)
     assert [c.name for c in good] == [
         "mesh is watertight",
         "oriented bounding box fits the build volume",
@@ -452,12 +454,12 @@ def test_model_piece_checks_pass_and_name_the_piece_when_they_fail():
     assert good[2].measured == pytest.approx(5.0)
     assert (good[2].expected, good[2].tolerance, good[2].relative) == (4.0, 0.0, False)
 
-    bad = checks.model_piece_checks("wing right piece 1", v, f, (30, 30, 30), bores, 6.0)
+    bad = piece_checks.model_piece_checks("wing right piece 1", v, f, (30, 30, 30), bores, 6.0)
     failed = {c.name: c for c in bad if not c.passed}
     assert set(failed) == {"oriented bounding box fits the build volume", "wall around spar hole"}
     assert failed["oriented bounding box fits the build volume"].measured == pytest.approx(10.0)
     assert all(c.part == "wing right piece 1" for c in bad)
 
     open_v, open_f = v, f[:-1]  # one triangle missing
-    leaky = checks.model_piece_checks("tip piece", open_v, open_f, (220, 220, 250), [], 1.0)
+    leaky = piece_checks.model_piece_checks("tip piece", open_v, open_f, (220, 220, 250), [], 1.0)
     assert not leaky[0].passed and leaky[0].part == "tip piece"

@@ -226,11 +226,11 @@ def test_random_tails_build_with_every_check_passing(doc: dict, surface: str) ->
     if result is None:
         return
     from geomgen.checks import solid_checks as checks
-    from geomgen.solids import cad
+    from geomgen.solids import assembly
 
     _, layout = result
     try:
-        built = cad.build(layout, (), {surface})
+        built = assembly.build(layout, (), {surface})
     except GeometryError as err:
         assert err.part, str(err)
         return

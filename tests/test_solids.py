@@ -29,7 +29,7 @@ import geomgen.checks.tolerances
 from geomgen.checks.tolerances import TOLERANCES
 from geomgen.geometry.layout import lay_out
 from geomgen.sizing.aircraft import size
-from geomgen.solids import cad
+from geomgen.solids import assembly, controls, kernel, meshing, step
 
 MM = 1000.0  # mm per m (SI definition)
 
@@ -181,7 +181,9 @@ def plain_wings() -> dict:
         d = make_design(plain_wing_document(section, taper, sweep))
         dirs = (PROFILES,)
         sl = lay_out(size(d, dirs), dirs).surface("wing")
-        side = cad.build_side(sl, "right", d.solids.section_points, d.solids.te_thickness, dirs)
+        side = controls.build_side(
+            sl, "right", d.solids.section_points, d.solids.te_thickness, dirs
+        )
         t = int(section[-2:]) / 100.0  # NACA 4-digit: last two digits are t/c in percent
         out[case] = (t, PLAIN_AREA, PLAIN_ASPECT_RATIO, taper, side)
     return out
@@ -211,7 +213,7 @@ def test_plain_wing_volume_is_the_section_area_integral(plain_wings: dict, case:
     # planes y = const, which leaves every section area and so the volume unchanged
     # (Cavalieri's principle).
     exact = naca_area_per_thickness() * t * semi * c_root**2 * (1 + taper + taper**2) / 3
-    measured = cad.volume(side.whole) / MM**3
+    measured = kernel.volume(side.whole) / MM**3
     assert measured == pytest.approx(exact, rel=0.005)
 
 
@@ -219,7 +221,7 @@ def test_plain_wing_volume_is_the_section_area_integral(plain_wings: dict, case:
 def test_plain_wing_wetted_area_matches_raymer(plain_wings: dict, case: str) -> None:
     t, area, ar, taper, side = plain_wings[case]
     whole = side.whole
-    caps = cad.planar_cap_area(whole, "wing") / MM**2
+    caps = meshing.planar_cap_area(whole, "wing") / MM**2
     wetted = whole.Area() / MM**2 - caps
     # the caps are the root and tip sections: A t (c_r^2 + c_t^2) with A the NACA integral
     _, c_root = trapezoid(area, ar, taper)
@@ -239,7 +241,9 @@ def test_plain_wing_wetted_area_matches_raymer(plain_wings: dict, case: str) -> 
 def demo(demo_build: CliRun) -> CliRun:
     if demo_build.code != 0:
         pytest.fail(f"the demo build failed (exit {demo_build.code}): {demo_build.stderr}")
-    assert demo_build.build is not None, "the pipeline no longer calls geomgen.solids.cad.build"
+    assert demo_build.build is not None, (
+        "the pipeline no longer calls geomgen.solids.assembly.build"
+    )
     return demo_build
 
 
@@ -335,7 +339,7 @@ def test_cut_face_lies_on_the_hinge_plane(demo: CliRun, report: dict, name: str)
     samples = edge_samples(on_plane[0])  # its boundary: where the plane cuts the skins
     assert np.abs((samples - point) @ n).max() < tol
     assert on_plane[0].Area() > 0
-    distances = cad.face_points_on_plane(cb.aft_portion, point, n, tol)
+    distances = meshing.face_points_on_plane(cb.aft_portion, point, n, tol)
     assert distances and max(distances) < tol
 
 
@@ -361,7 +365,7 @@ def test_deflection_turns_about_the_hinge_axis_with_the_trade_sign(
     _, cb = control(demo.build, name)
     p0, p1, _ = report_hinge(report, name)
     before = vertices(cb.moving_undeflected)
-    after = vertices(cad.deflect_part(demo.build, name, ANGLE))
+    after = vertices(assembly.deflect_part(demo.build, name, ANGLE))
     a, b, turn = _expected_turn(name, p0, p1, ANGLE)
     # a rigid turn about the layout's hinge axis (Rodrigues' rotation formula)
     assert np.linalg.norm(after - rotate_about(before, a, b, turn), axis=1).max() < 1e-6
@@ -376,10 +380,10 @@ def test_deflection_turns_about_the_hinge_axis_with_the_trade_sign(
 @pytest.mark.parametrize("name", MOVING)
 def test_deflecting_there_and_back_restores_the_part(demo: CliRun, name: str) -> None:
     sb, cb = control(demo.build, name)
-    there = cad.deflect_part(demo.build, name, ANGLE)
-    back = cad._deflect(there, sb.surface, *cb.axis, -ANGLE)
+    there = assembly.deflect_part(demo.build, name, ANGLE)
+    back = controls._deflect(there, sb.surface, *cb.axis, -ANGLE)
     original = cb.moving_undeflected
-    assert cad.volume(back) == pytest.approx(cad.volume(original), rel=1e-6)
+    assert kernel.volume(back) == pytest.approx(kernel.volume(original), rel=1e-6)
     assert np.abs(exact_box(back) - exact_box(original)).max() < 1e-6
     v0, v1 = vertices(original), vertices(back)
     assert v0.shape == v1.shape
@@ -476,7 +480,7 @@ def test_nose_is_round_about_the_hinge_axis_and_clears_its_cove(
 
 @pytest.fixture(scope="module")
 def step_volumes(demo: CliRun) -> dict[str, float]:
-    return cad.read_step(demo.out_root / "veyra-t2" / "veyra-t2.step")
+    return step.read_step(demo.out_root / "veyra-t2" / "veyra-t2.step")
 
 
 @pytest.fixture(scope="module")
@@ -503,7 +507,7 @@ def test_step_volumes_match_the_solids_and_the_stl(
 ) -> None:
     for part in demo.build.parts:
         assert step_volumes[part.name] == pytest.approx(
-            cad.volume(part.shape), rel=TOLERANCES.step_readback
+            kernel.volume(part.shape), rel=TOLERANCES.step_readback
         ), part.name
         # an independent measure: the volume enclosed by the STL triangles (trimesh)
         assert stl_meshes[part.name].volume == pytest.approx(

@@ -128,10 +128,10 @@ def run_build(
         stage("nothing changed since the last build: every output kept")
         return _kept_result(target)
     from geomgen.checks import solid_checks as checks
-    from geomgen.solids import cad
+    from geomgen.solids import assembly, kernel, meshing, step
 
     store = Cache(out_root / ".cache", enabled=not fresh)
-    built = cad.build(layout, dirs, only, store)
+    built = assembly.build(layout, dirs, only, store)
     parts = built.parts
     if store.hits:
         stage(f"reused {len(store.hits)} solid(s) from the cache: {', '.join(store.hits)}")
@@ -150,17 +150,17 @@ def run_build(
         step_path = folder.path(f"{d.name}.step")
         from geomgen.store.stamp import output_time
 
-        cad.write_step(parts, step_path, d.name, when=output_time(d))
+        step.write_step(parts, step_path, d.name, when=output_time(d))
         stage(f"wrote {step_path.name}")
         meshes = {}
         for p in parts:
             deflection = d.solids.tessellation * p.local_chord_min
             stl = folder.path(f"stl/{p.name}.stl")
             if p is body:  # pointed ends: the writer drops the tips' zero-area triangles
-                cad.write_body_stl(p.shape, stl, deflection)
+                meshing.write_body_stl(p.shape, stl, deflection)
             else:
-                cad.write_stl(p.shape, stl, deflection)
-            solid_volume = cad.volume(p.shape)
+                meshing.write_stl(p.shape, stl, deflection)
+            solid_volume = kernel.volume(p.shape)
             part_checks, meshes[p.name] = checks.stl_checks(p.name, stl, solid_volume)
             results += part_checks
             part_rows.append((p.name, solid_volume, deflection))
@@ -171,7 +171,7 @@ def run_build(
             results += checks.fuselage_checks(
                 body.shape, layout.body, d.solids.tessellation * body.local_chord_min
             )
-        results += checks.step_checks(cad.read_step(step_path), parts)
+        results += checks.step_checks(step.read_step(step_path), parts)
         stage(f"ran {len(results)} checks")
         failed = tuple(f"{c.part}: {c.name}" for c in results if not c.passed)
         if failed:
@@ -185,7 +185,7 @@ def run_build(
             )
         checks_text = _checks_json(results)
         folder.write_text("checks.json", checks_text)
-        folder.write_text("parts.json", _parts_json(parts, cad))
+        folder.write_text("parts.json", _parts_json(parts, kernel))
         # (the stamp is written last, once report.html is there: see below)
         from geomgen.outputs.html_report import write_html
 
@@ -243,15 +243,15 @@ def _kept_result(target: Path) -> BuildResult:
     return BuildResult(target, rows, checks["count"], names, (), True)
 
 
-def _parts_json(parts, cad) -> str:
+def _parts_json(parts, kernel) -> str:
     """Every built part's volume and axis-aligned bounding box (mm), for ``geomgen diff``."""
     rows = []
     for p in parts:
-        lo, hi = cad.bounding_box(p.shape)
+        lo, hi = kernel.bounding_box(p.shape)
         rows.append(
             {
                 "name": p.name,
-                "volume": {"value": cad.volume(p.shape), "unit": "mm^3"},
+                "volume": {"value": kernel.volume(p.shape), "unit": "mm^3"},
                 "bounding_box": {"min": lo, "max": hi, "unit": "mm"},
             }
         )
@@ -314,10 +314,10 @@ def run_model(
     te_full = max(d.solids.te_thickness, spec.min_te_thickness / k)
     d2 = dataclasses.replace(d, solids=dataclasses.replace(d.solids, te_thickness=te_full))
     layout2 = dataclasses.replace(layout, sizing=dataclasses.replace(layout.sizing, design=d2))
-    from geomgen.checks import solid_checks as checks
-    from geomgen.solids import cad
+    from geomgen.checks import common, piece_checks, threemf_io
+    from geomgen.solids import assembly, kernel, meshing, printed
 
-    built = cad.build(layout2, dirs)
+    built = assembly.build(layout2, dirs)
     stage(f"built the full-size solids (trailing edges at least {te_full * 1000:.1f} mm)")
     shapes = {p.name: p.shape for p in built.parts if not p.moving}
 
@@ -338,7 +338,7 @@ def run_model(
             key = mdl.hinge_key(sl, c, spec, f, up, cspec.side_gap * f)
             keys.append(key)
             for v in (v for v in asked if v.part == c.name):
-                variants.append((v, cad.deflect_part(built, c.name, v.deflection), key))
+                variants.append((v, assembly.deflect_part(built, c.name, v.deflection), key))
         plans.append(dataclasses.replace(plan, holes=plan.holes + tuple(keys)))
     if layout2.body is not None:
         spars = [h for p in plans for h in p.holes if h.kind == "spar"]
@@ -354,13 +354,13 @@ def run_model(
     full = dict(shapes)
     if "fuselage" in full:
         sockets = [s for n, s in full.items() if n != "fuselage"]
-        full["fuselage"] = cad.cut_away(full["fuselage"], sockets, "fuselage")
+        full["fuselage"] = printed.cut_away(full["fuselage"], sockets, "fuselage")
         stage("cut the sockets of the surface roots into the fuselage")
     pieces: dict[str, object] = {}
     piece_holes: dict[str, list] = {}
     reassembly = []
     for plan in plans:
-        drilled = cad.drill(full[plan.part], [_full_size(h, k) for h in plan.holes], plan.part)
+        drilled = printed.drill(full[plan.part], [_full_size(h, k) for h in plan.holes], plan.part)
         names = plan.pieces
         for i, name in enumerate(names):
             lo, hi = plan.bounds(i)
@@ -368,19 +368,19 @@ def run_model(
                 piece = drilled
             else:
                 a, b = (lo, hi) if plan.sign > 0 else (-hi, -lo)
-                piece = cad.slice_between(drilled, plan.axis, a / k, b / k, name)
-            pieces[name] = cad.scaled(piece, k, name)
+                piece = printed.slice_between(drilled, plan.axis, a / k, b / k, name)
+            pieces[name] = printed.scaled(piece, k, name)
             piece_holes[name] = _holes_in(plan, plan.holes, lo, hi)
-        reassembly.append((plan, cad.volume(full[plan.part]) * k**3))
+        reassembly.append((plan, kernel.volume(full[plan.part]) * k**3))
     for v, shape, key in variants:
-        drilled = cad.drill(shape, [_full_size(key, k)], v.name)
-        pieces[v.name] = cad.scaled(drilled, k, v.name)
+        drilled = printed.drill(shape, [_full_size(key, k)], v.name)
+        pieces[v.name] = printed.scaled(drilled, k, v.name)
         piece_holes[v.name] = [("hinge key", *_stretch(key, *key.moving), key.size)]
     stage(f"drilled and cut {len(pieces)} pieces")
 
     meshes = {
         # the body's pointed ends: the mesher leaves zero-area triangles at a tip
-        name: (cad.body_mesh_arrays if name.startswith("fuselage") else cad.mesh_arrays)(
+        name: (meshing.body_mesh_arrays if name.startswith("fuselage") else meshing.mesh_arrays)(
             shape, MODEL_DEFLECTION
         )
         for name, shape in pieces.items()
@@ -390,33 +390,35 @@ def run_model(
     wall_mm = spec.min_wall * 1000.0
     results: list = []
     for name, (v, fcs) in meshes.items():
-        results += checks.model_piece_checks(name, v, fcs, build_mm, piece_holes[name], wall_mm)
-    results += _reassembly_checks(reassembly, pieces, checks, cad)
-    results += _joint_checks(plans, meshes, checks)
+        results += piece_checks.model_piece_checks(
+            name, v, fcs, build_mm, piece_holes[name], wall_mm
+        )
+    results += _reassembly_checks(reassembly, pieces, common, kernel)
+    results += _joint_checks(plans, meshes, piece_checks)
     stage(f"ran {len(results)} checks")
 
     system = d.units
     effect = mdl.scale_effect(layout2, spec, k)
     rows = []
     for name, shape in pieces.items():
-        vol = cad.volume(shape)
+        vol = kernel.volume(shape)
         v, fcs = meshes[name]
-        normal, _ = checks.print_orientation(v, fcs)
-        size = checks.obb_extents(v, fcs)
+        normal, _ = piece_checks.print_orientation(v, fcs)
+        size = piece_checks.obb_extents(v, fcs)
         rows.append((name, _source_part(name, plans, variants), size, vol, normal))
     folder_name = f"{d.name}-model"
     with OutputFolder(out_root / folder_name) as folder:
         for name, (v, fcs) in meshes.items():
-            cad.write_stl_arrays(v, fcs, folder.path(f"stl/{name}.stl"), name)
+            meshing.write_stl_arrays(v, fcs, folder.path(f"stl/{name}.stl"), name)
         threemf = folder.path(f"{folder_name}.3mf")
-        checks.write_3mf(meshes, threemf)
-        back = checks.read_3mf(threemf)
-        results.append(checks.threemf_check(meshes, back))
+        threemf_io.write_3mf(meshes, threemf)
+        back = threemf_io.read_3mf(threemf)
+        results.append(threemf_io.threemf_check(meshes, back))
         from geomgen.printed_model.report import parts_csv, parts_markdown, report_markdown
 
         density = spec.material_density
-        folder.write_text("parts.md", parts_markdown(rows, density, checks.orientation_words))
-        folder.write_text("parts.csv", parts_csv(rows, density, checks.orientation_words))
+        folder.write_text("parts.md", parts_markdown(rows, density, piece_checks.orientation_words))
+        folder.write_text("parts.csv", parts_csv(rows, density, piece_checks.orientation_words))
         folder.write_text(
             "model-report.md",
             report_markdown(layout2, spec, k, effect, plans, variants, te_full, system),
@@ -484,16 +486,16 @@ def _source_part(name: str, plans, variants) -> str:
     return next(v.part for v, _, _ in variants if v.name == name)
 
 
-def _reassembly_checks(reassembly, pieces, checks, cad) -> list:
+def _reassembly_checks(reassembly, pieces, common, kernel) -> list:
     """The pieces of each part add up to the scaled part minus its holes (1 %)."""
     from geomgen.checks.tolerances import TOLERANCES
 
     out = []
     for plan, whole in reassembly:
-        total = sum(cad.volume(pieces[n]) for n in plan.pieces)
+        total = sum(kernel.volume(pieces[n]) for n in plan.pieces)
         holes = sum(h.section_area * h.length * sum(b - a for a, b in h.solid) for h in plan.holes)
         out.append(
-            checks._rel(
+            common._rel(
                 "pieces reassemble to the scaled part minus its holes",
                 plan.part,
                 total,
@@ -505,7 +507,7 @@ def _reassembly_checks(reassembly, pieces, checks, cad) -> list:
     return out
 
 
-def _joint_checks(plans, meshes, checks) -> list:
+def _joint_checks(plans, meshes, piece_checks) -> list:
     """The dowel holes on the two faces of every joint line up (0.05 mm)."""
     import numpy as np
 
@@ -522,10 +524,10 @@ def _joint_checks(plans, meshes, checks) -> list:
             point[plan.axis] = plan.sign * j.station
             found = []
             for n in (a, b):
-                loops = checks.plane_loop_centres(*meshes[n], point, normal)
+                loops = piece_checks.plane_loop_centres(*meshes[n], point, normal)
                 found.append([c for c, _ in loops[1:]])
             out.append(
-                checks.hole_alignment_check(
+                piece_checks.hole_alignment_check(
                     f"{plan.part} joint {j.index}",
                     found[0],
                     found[1],
