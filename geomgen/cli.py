@@ -12,7 +12,8 @@ import sys
 from pathlib import Path
 
 from geomgen import __version__
-from geomgen.commands.pipeline import run_build, run_model, run_size
+from geomgen.commands.model import run_model
+from geomgen.commands.pipeline import run_build, run_size
 from geomgen.errors import GeomgenError, InputError
 
 

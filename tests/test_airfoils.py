@@ -8,20 +8,10 @@ import numpy as np
 import pytest
 
 from geomgen.errors import InputError
-from geomgen.shapes.airfoils import (
-    MAX_TE_GAP,
-    NACA5_MEAN_LINES,
-    Airfoil,
-    blend,
-    load,
-    naca4,
-    naca5,
-    naca5_mean_line,
-    read_coordinates,
-    resample,
-    with_min_te_thickness,
-    write_coordinates,
-)
+from geomgen.shapes.airfoils import blend, load, with_min_te_thickness
+from geomgen.shapes.coordinates import read_coordinates, write_coordinates
+from geomgen.shapes.naca import NACA5_MEAN_LINES, naca4, naca5, naca5_mean_line
+from geomgen.shapes.outline import MAX_TE_GAP, Airfoil, resample
 
 PROFILES = Path(__file__).resolve().parents[1] / "profiles"
 

@@ -17,7 +17,7 @@ from designs import DEMO, demo_document
 
 from geomgen.cli import main
 from geomgen.commands.pipeline import run_size
-from geomgen.commands.sweep import EXPOSED_COLUMNS, REPORT_COLUMNS
+from geomgen.commands.sweep_summary import EXPOSED_COLUMNS, REPORT_COLUMNS
 
 #: 1 kn = 1852 m / 3600 s exactly (international nautical mile, 1929)
 KN = 1852.0 / 3600.0

@@ -22,6 +22,7 @@ import numpy as np
 from geomgen.errors import InputError
 from geomgen.geometry.frame import place
 from geomgen.shapes import airfoils
+from geomgen.shapes.outline import Airfoil
 from geomgen.sizing.aircraft import Sizing, SurfaceSizing
 
 if TYPE_CHECKING:
@@ -145,7 +146,7 @@ def _point(ss: SurfaceSizing, side: str, s: float, x: float, y: float = 0.0) -> 
 
 
 @lru_cache(maxsize=64)
-def _section(name: str, dirs: tuple) -> airfoils.Airfoil:
+def _section(name: str, dirs: tuple) -> Airfoil:
     return airfoils.load(name, dirs)
 
 
@@ -162,7 +163,7 @@ def mean_line_offset(ss: SurfaceSizing, s: float, fraction: float, dirs: tuple =
     return (1 - t) * mid(a.airfoil) + t * mid(b.airfoil)
 
 
-def _mid_y(af: airfoils.Airfoil, x: float) -> float:
+def _mid_y(af: Airfoil, x: float) -> float:
     yu = np.interp(x, af.upper[:, 0], af.upper[:, 1])
     yl = np.interp(x, af.lower[:, 0], af.lower[:, 1])
     return float(0.5 * (yu + yl))

@@ -18,6 +18,7 @@ import numpy as np
 from geomgen.errors import InputError
 from geomgen.geometry.layout import SurfaceLayout, place
 from geomgen.shapes import airfoils
+from geomgen.shapes.outline import Airfoil, resample
 from geomgen.sizing.aircraft import SurfaceSizing
 
 
@@ -40,19 +41,19 @@ class SurfaceSections:
 
 
 @lru_cache(maxsize=128)
-def _unit(name: str, dirs: tuple, points: int) -> airfoils.Airfoil:
-    return airfoils.resample(airfoils.load(name, dirs), points)
+def _unit(name: str, dirs: tuple, points: int) -> Airfoil:
+    return resample(airfoils.load(name, dirs), points)
 
 
 def unit_section(
     ss: SurfaceSizing, s: float, points: int, te_thickness: float, dirs: tuple = ()
-) -> airfoils.Airfoil:
+) -> Airfoil:
     """Unit-chord section of surface ``ss`` at spanwise position s (blended, TE thickened)."""
     pf = ss.planform
     i, t = pf.section_weight(s)
     a, b = pf.stations[i], pf.stations[i + 1]
 
-    def at_station(blend: tuple[str, str, float]) -> airfoils.Airfoil:
+    def at_station(blend: tuple[str, str, float]) -> Airfoil:
         fa = _load(ss, blend[0], dirs, points)
         fb = _load(ss, blend[1], dirs, points)
         return airfoils.blend(fa, fb, blend[2])
@@ -64,7 +65,7 @@ def unit_section(
     return section
 
 
-def _load(ss: SurfaceSizing, name: str, dirs: tuple, points: int) -> airfoils.Airfoil:
+def _load(ss: SurfaceSizing, name: str, dirs: tuple, points: int) -> Airfoil:
     try:
         return _unit(name, tuple(dirs), points)
     except InputError as err:

@@ -21,6 +21,7 @@ from pathlib import Path
 from geomgen.design import Design, SurfaceSpec
 from geomgen.errors import InputError
 from geomgen.shapes import airfoils
+from geomgen.shapes.outline import MAX_TE_GAP
 from geomgen.sizing.atmosphere import AtmosphereState, isa
 from geomgen.sizing.planform import PanelInput, Planform, build_planform
 
@@ -177,13 +178,13 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
 
 def _check_te_thickness(design: Design, surfaces: list[SurfaceSizing]) -> None:
     """The minimum trailing-edge thickness is blended into every section: refuse one thicker
-    than airfoils.MAX_TE_GAP of the smallest chord (it would no longer be a trailing edge)."""
+    than MAX_TE_GAP of the smallest chord (it would no longer be a trailing edge)."""
     te = design.solids.te_thickness
     chord, where = min((st.chord, s.key) for s in surfaces for st in s.planform.stations)
-    limit = airfoils.MAX_TE_GAP * chord
+    limit = MAX_TE_GAP * chord
     if te > limit:
         raise InputError(
-            f"must be at most {airfoils.MAX_TE_GAP:g} of the smallest chord ({chord * 1000:.1f} "
+            f"must be at most {MAX_TE_GAP:g} of the smallest chord ({chord * 1000:.1f} "
             f"mm, {where}), i.e. {limit * 1000:.2f} mm (got {te * 1000:g} mm)",
             source=design.source,
             path="solids.te_thickness",
