@@ -45,6 +45,12 @@ PURE = [
     "outputs/dxf.py",
     "outputs/templates.py",
     "outputs/html_report.py",
+    "outputs/template_pdf.py",
+    "outputs/views.py",
+    "outputs/sheet.py",
+    "outputs/right_column.py",
+    "outputs/html_sections.py",
+    "outputs/markdown_report.py",
 ]
 #: the floors of the house, lowest first: a module may import its own subpackage and any
 #: floor below its own, never a floor above nor a sibling on its own floor

@@ -17,6 +17,7 @@ from pypdf.generic import ContentStream
 
 from geomgen.geometry.layout import lay_out
 from geomgen.outputs import templates
+from geomgen.outputs.template_pdf import write_template_pdf
 from geomgen.sizing.aircraft import size
 
 # 72 pt per inch (PDF 1.7, ISO 32000-1, 8.3.2.3: default user space unit 1/72 in) and
@@ -183,7 +184,7 @@ def small_layout(paper: str = "A4", body: dict | None = None):
 @pytest.fixture(scope="module")
 def small(tmp_path_factory):
     layout = small_layout()
-    path = templates.write_template_pdf(layout, tmp_path_factory.mktemp("small") / "t.pdf")
+    path = write_template_pdf(layout, tmp_path_factory.mktemp("small") / "t.pdf")
     return layout, path, read_pages(path)
 
 
@@ -191,7 +192,7 @@ def small(tmp_path_factory):
 def bodied(tmp_path_factory):
     """The small airplane with MODEL_BODY: its sections and two formers."""
     layout = small_layout(body=MODEL_BODY)
-    path = templates.write_template_pdf(layout, tmp_path_factory.mktemp("body") / "t.pdf")
+    path = write_template_pdf(layout, tmp_path_factory.mktemp("body") / "t.pdf")
     return layout, read_pages(path)
 
 
@@ -202,7 +203,7 @@ def demo(tmp_path_factory):
     doc = with_body(demo_document(), None)
     doc["drawings"] = {"paper": "A4"}
     layout = lay_out(size(make_design(doc)))
-    path = templates.write_template_pdf(layout, tmp_path_factory.mktemp("demo") / "t.pdf")
+    path = write_template_pdf(layout, tmp_path_factory.mktemp("demo") / "t.pdf")
     return layout, read_pages(path)
 
 
@@ -217,7 +218,7 @@ def test_pages_are_a4_in_points(small, demo, bodied):
 
 
 def test_letter_pages_are_8_5_by_11_inches(tmp_path):
-    path = templates.write_template_pdf(small_layout("Letter"), tmp_path / "letter.pdf")
+    path = write_template_pdf(small_layout("Letter"), tmp_path / "letter.pdf")
     pages = read_pages(path)
     assert pages
     for page in pages:
@@ -332,7 +333,7 @@ def test_drawing_stays_inside_the_margins(demo):
 
 def test_pdf_is_deterministic(small, tmp_path):
     layout, path, _ = small
-    again = templates.write_template_pdf(layout, tmp_path / "again.pdf")
+    again = write_template_pdf(layout, tmp_path / "again.pdf")
     assert again.read_bytes() == path.read_bytes()
 
 

@@ -32,7 +32,8 @@ def _size(design_path: Path):
 
 
 def _write_reports(folder: OutputFolder, layout, system: str) -> None:
-    from geomgen.outputs.report import to_json, to_markdown
+    from geomgen.outputs.markdown_report import to_markdown
+    from geomgen.outputs.report import to_json
 
     folder.write_text("report.json", to_json(layout))
     folder.write_text("report.md", to_markdown(layout, system))
@@ -143,7 +144,7 @@ def run_build(
     with OutputFolder(out_root / d.name) as folder:
         _write_reports(folder, layout, system)
         svg = _write_drawings(folder, layout, system, dirs)
-        from geomgen.outputs.templates import write_template_pdf
+        from geomgen.outputs.template_pdf import write_template_pdf
 
         write_template_pdf(layout, folder.path("templates.pdf"), dirs)
         stage("wrote the reports, drawings, DXF files and 1:1 templates")
