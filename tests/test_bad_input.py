@@ -141,7 +141,7 @@ def _pairs(points: list[tuple[float, float]]) -> str:
 UNCLOSED_SECTION = _pairs(
     [(1 - i / 20, 0.06 * (1 - i / 20)) for i in range(21)] + [(i / 20, -0.04) for i in range(1, 11)]
 )
-#: nine points: one short of airfoils.MIN_FILE_POINTS
+#: nine points: one short of coordinates.MIN_FILE_POINTS
 TOO_FEW_POINTS = _pairs(
     [(1, 0), (0.75, 0.04), (0.5, 0.06), (0.25, 0.05), (0, 0)]
     + [(0.25, -0.04), (0.5, -0.04), (0.75, -0.02), (1, 0.001)]

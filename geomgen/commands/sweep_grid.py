@@ -79,7 +79,7 @@ def _split_path(key: str) -> tuple[str | int, ...]:
 
 
 def _declared_field(steps: tuple[str | int, ...], document: dict, source: str, key: str):
-    """The declaration (geomgen.fields) of the key at ``steps``; its parents must be in the
+    """The declaration (geomgen.design.fields) of the key at ``steps``; its parents must be in the
     design (list items too), the key itself may be left out if the design file allows it."""
     from geomgen import design as design_module
     from geomgen.design.fields import AnyOf, ListOf, Mapping

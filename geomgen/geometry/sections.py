@@ -16,7 +16,8 @@ from functools import lru_cache
 import numpy as np
 
 from geomgen.errors import InputError
-from geomgen.geometry.layout import SurfaceLayout, place
+from geomgen.geometry.frame import place
+from geomgen.geometry.layout import SurfaceLayout
 from geomgen.shapes import airfoils
 from geomgen.shapes.outline import Airfoil, resample
 from geomgen.sizing.aircraft import SurfaceSizing

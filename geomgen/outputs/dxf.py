@@ -6,9 +6,9 @@ package is its fuselage station and butt line (or water line): the plan view has
 Y = y (right), seen from above; a wing or horizontal-tail planform has X = x, Y = y of the right
 half without incidence, twist or dihedral (spanwise positions projected, as everywhere in
 geomgen); the fin's planform has X = x, Y = z. Templates are drawn in each section's own plane
-(see :mod:`geomgen.templates`). A design with a fuselage adds its outline seen from above to the
-plan view (layer ``fuselage``) and its former templates to the template drawing. ezdxf is
-imported inside the functions.
+(see :mod:`geomgen.outputs.templates`). A design with a fuselage adds its outline seen from
+above to the plan view (layer ``fuselage``) and its former templates to the template
+drawing. ezdxf is imported inside the functions.
 """
 
 from __future__ import annotations
@@ -22,7 +22,8 @@ import numpy as np
 
 from geomgen.design import BodyStation
 from geomgen.errors import GeometryError
-from geomgen.geometry.layout import PART_NAMES, Layout, SurfaceLayout, corner_labels, place
+from geomgen.geometry.frame import place
+from geomgen.geometry.layout import PART_NAMES, Layout, SurfaceLayout, corner_labels
 from geomgen.outputs.report import CAUTION, SURFACE_TITLES
 from geomgen.outputs.templates import (
     FormerTemplate,

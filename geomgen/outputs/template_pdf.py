@@ -214,7 +214,7 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     ``OVERLAP``; crosses in each overlap, labelled with their drawing position, show on both
     pages. Every page carries a 100 mm check bar, its label (template, tile i of n) and the
     caution. Output is deterministic: the PDF's creation and modification dates are
-    :func:`geomgen.stamp.output_time` of the design, never the clock."""
+    :func:`geomgen.store.stamp.output_time` of the design, never the clock."""
     import matplotlib
     from matplotlib.backends.backend_pdf import PdfPages
 

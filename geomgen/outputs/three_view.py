@@ -14,8 +14,9 @@ text), ``corner-point-WR1`` (a dot on the point), ``ref-origin-plan``, ``ref-x1-
 matplotlib leaves out a marker that falls off the paper),
 ``table-WR1-x``, ``dim-tail-arm-horizontal_tail``, ``hinge-aileron-right``, ``title-date``...
 Output is deterministic: SVG ids are salted with a fixed string and the only date written is
-:func:`geomgen.stamp.output_time` of the design (SVG ``dc:date``, PNG "Creation Time"), never the
-clock, so two runs give byte-identical files. matplotlib is imported only when a sheet is drawn.
+:func:`geomgen.store.stamp.output_time` of the design (SVG ``dc:date``, PNG "Creation Time"),
+never the clock, so two runs give byte-identical files. matplotlib is imported only when a sheet is
+drawn.
 """
 
 from __future__ import annotations

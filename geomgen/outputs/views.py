@@ -17,7 +17,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from geomgen.geometry.layout import CornerLabel, Layout, SurfaceLayout, corner_labels, place
+from geomgen.geometry.frame import place
+from geomgen.geometry.layout import CornerLabel, Layout, SurfaceLayout, corner_labels
 from geomgen.outputs.sheet import COLUMN_W, GUTTER, MARGIN, PAPER_H, PAPER_W, Page, Point
 
 

@@ -16,7 +16,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from geomgen.design import ModelSpec
-from geomgen.geometry.layout import Layout, SurfaceLayout, mean_line_offset, place
+from geomgen.geometry.frame import place
+from geomgen.geometry.layout import Layout, SurfaceLayout, mean_line_offset
 from geomgen.geometry.sections import placed_section
 
 #: dowel holes run this much (mm) deeper than half the dowel on each side

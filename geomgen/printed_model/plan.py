@@ -19,7 +19,8 @@ import numpy as np
 
 from geomgen.design import ModelSpec
 from geomgen.errors import GeometryError, InputError
-from geomgen.geometry.layout import Layout, SurfaceLayout, fixed_part_name, mean_line_offset, place
+from geomgen.geometry.frame import place
+from geomgen.geometry.layout import Layout, SurfaceLayout, fixed_part_name, mean_line_offset
 from geomgen.printed_model.holes import (
     DOWEL_CLEARANCE,
     Hole,

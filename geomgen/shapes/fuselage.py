@@ -445,7 +445,7 @@ def loft_sections(
     station interval cut into equal steps, at least ``between`` + 1 of them and none longer
     than 1/_LOFT_STEPS of the body, the sections inside blended from the stations, so the
     kernel's smooth fit follows this module's spline instead of making its own curve through
-    a few sections (see ``cad.build_fuselage`` for what that did)."""
+    a few sections (see ``solids.body.build_fuselage`` for what that did)."""
     xs = np.array([s.x for s in stations])
     if ruled:
         xq = xs

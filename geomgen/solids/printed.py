@@ -33,7 +33,7 @@ def scaled(shape: cq.Shape, k: float, part: str) -> cq.Shape:
 
 
 def hole_solid(hole) -> cq.Shape:
-    """The solid a ``model.Hole`` removes: a cylinder, or a square prism (model mm)."""
+    """The solid a ``printed_model.holes.Hole`` removes: a cylinder or a square prism (mm)."""
     a, b = np.array(hole.start), np.array(hole.end)
     e = _unit(b - a)
     length = float(np.linalg.norm(b - a))
