@@ -14,14 +14,64 @@ from geomgen.design.common import DEG, FRACTION
 from geomgen.design.fields import AnyOf, Flag, ListOf, Mapping, Number, Quantity, Text, between, ge
 from geomgen.errors import InputError
 
-
-def _span_position(what: str) -> AnyOf:
-    return AnyOf(
-        description=f"{what}: a fraction of the semi-span (0 to 1) or a length from the root",
-        options=(Number(bounds=between(0.0, 1.0)), Quantity(dimension="length", bounds=ge(0.0))),
-        summary='a fraction of the semi-span in [0, 1] or a length such as "1.2 m"',
-        tagged=True,
-    )
+#: the inner end of a control surface: as a position from the root, or from the body side
+_SPAN_START = AnyOf(
+    description=(
+        "inner end: a fraction of the semi-span (0 to 1), a length from the root, body_side "
+        "(at the body side plus side_gap: the fuselage's side for a wing or tail half, the top "
+        "of the body for a fin), or {body_side: LENGTH} (that much further outboard); "
+        "positions from the body side follow the body when the sizing moves the surface"
+    ),
+    options=(
+        Number(bounds=between(0.0, 1.0)),
+        Quantity(dimension="length", bounds=ge(0.0)),
+        Text(choices=("body_side",)),
+        Mapping(
+            fields=(
+                (
+                    "body_side",
+                    Quantity(
+                        dimension="length",
+                        bounds=between(0.0, 50.0),
+                        description="outboard of the body side plus side_gap",
+                    ),
+                ),
+            )
+        ),
+    ),
+    summary='a fraction of the semi-span in [0, 1], a length such as "1.2 m", body_side, or '
+    '{body_side: "20 mm"}',
+    tagged=True,
+    examples=(0.47, "0.55 m", "body_side", {"body_side": "20 mm"}),
+)
+#: the outer end: as a position from the root, or from the tip
+_SPAN_END = AnyOf(
+    description=(
+        "outer end: a fraction of the semi-span (0 to 1), a length from the root, tip, or "
+        "{tip: LENGTH} (that much inboard of the tip); positions from the tip follow the span"
+    ),
+    options=(
+        Number(bounds=between(0.0, 1.0)),
+        Quantity(dimension="length", bounds=ge(0.0)),
+        Text(choices=("tip",)),
+        Mapping(
+            fields=(
+                (
+                    "tip",
+                    Quantity(
+                        dimension="length",
+                        bounds=between(0.0, 50.0),
+                        description="inboard of the tip",
+                    ),
+                ),
+            )
+        ),
+    ),
+    summary='a fraction of the semi-span in [0, 1], a length such as "2.1 m", tip, or '
+    '{tip: "150 mm"}',
+    tagged=True,
+    examples=(0.94, "2.1 m", "tip", {"tip": "150 mm"}),
+)
 
 
 _HINGE_AT = AnyOf(
@@ -42,8 +92,8 @@ def control(kind_word: str) -> Mapping:
         description=f"{kind_word}: a moving part cut free at its hinge line",
         optional=True,
         fields=(
-            ("span_start", _span_position("inner end")),
-            ("span_end", _span_position("outer end")),
+            ("span_start", _SPAN_START),
+            ("span_end", _SPAN_END),
             (
                 "hinge",
                 Text(
@@ -120,6 +170,11 @@ class ControlSpec:
     deflection_range: float  # rad, cove clears +- this
     hinge_gap: float  # m
     side_gap: float  # m
+    #: "root": span_start as above; "body_side": span_start is a length outboard of the body
+    #: side plus side_gap
+    span_start_from: str = "root"
+    #: "root": span_end as above; "tip": span_end is a length inboard of the tip
+    span_end_from: str = "root"
 
 
 def control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> ControlSpec:
@@ -161,7 +216,7 @@ def control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> Con
             path=f"{path}.deflection",
         )
     start, end = c["span_start"], c["span_end"]
-    if start[0] == end[0] and start[1] >= end[1]:
+    if start[0] == end[0] and start[0] < 2 and start[1] >= end[1]:
         raise InputError(
             f"must be outboard of span_start (got span_start {start[1]:g}, span_end {end[1]:g})",
             source=source,
@@ -169,8 +224,8 @@ def control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> Con
         )
     return ControlSpec(
         kind=kind,
-        span_start=start[1],
-        span_end=end[1],
+        span_start=_from_reference(start, "body_side"),
+        span_end=_from_reference(end, "tip"),
         span_start_is_fraction=start[0] == 0,
         span_end_is_fraction=end[0] == 0,
         hinge=c["hinge"],
@@ -180,4 +235,17 @@ def control_spec(surface: str, kind: str, c: dict[str, Any], source: str) -> Con
         deflection_range=c["deflection_range"],
         hinge_gap=c["hinge_gap"],
         side_gap=c["side_gap"],
+        span_start_from="body_side" if start[0] >= 2 else "root",
+        span_end_from="tip" if end[0] >= 2 else "root",
     )
+
+
+def _from_reference(tagged: tuple[int, Any], word: str) -> float:
+    """A span position's number: the fraction or length as written (options 0, 1), zero for
+    the bare word (2), or the length given under the word (3)."""
+    option, value = tagged
+    if option == 2:
+        return 0.0
+    if option == 3:
+        return value[word]
+    return value

@@ -82,6 +82,7 @@ class Field:
     description: str = ""
     default: Any = None  # None = required (unless ``optional``)
     optional: bool = False
+    examples: tuple = ()  # shown in the JSON Schema (editors offer them)
 
     @property
     def required(self) -> bool:
@@ -95,6 +96,8 @@ class Field:
             body["description"] = self.description
         if self.default is not None:
             body["default"] = self.default
+        if self.examples:
+            body["examples"] = list(self.examples)
         return body
 
     def parse(self, value: Any, path: str) -> Any:  # pragma: no cover - overridden
@@ -224,6 +227,8 @@ def _shape_fits(option: Field, value: Any) -> bool:
         return isinstance(value, str) and any(c.isdigit() for c in value)
     if isinstance(option, ListOf):
         return isinstance(value, list)
+    if isinstance(option, Mapping):
+        return isinstance(value, dict)
     return False
 
 

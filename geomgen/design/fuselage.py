@@ -163,6 +163,18 @@ FUSELAGE = Mapping(
         ("shape", _body_shape("parametric form: ")),
         ("exponent", _BODY_EXPONENT),
         ("corner_radius", _BODY_CORNER),
+        (
+            "end_behind_tails",
+            Quantity(
+                dimension="length",
+                bounds=between(-5.0, 5.0),
+                optional=True,
+                description="the body ends this far behind the rearmost tail root's trailing "
+                "edge: its tail cone stretches or shrinks as the sizing moves the tails (nose "
+                "and cabin stay; stations aft of the cone's start stretch along x); leave it "
+                "out for a body of fixed length",
+            ),
+        ),
     ),
 )
 
@@ -204,6 +216,7 @@ class FuselageSpec:
 
     stations: tuple[BodyStation, ...]  # empty for the parametric form
     parametric: ParametricBody | None
+    end_behind_tails: float | None = None  # m; None: the body's length is as written
 
 
 def fuselage_spec(raw: dict[str, Any] | None, source: str) -> FuselageSpec | None:
@@ -223,7 +236,9 @@ def fuselage_spec(raw: dict[str, Any] | None, source: str) -> FuselageSpec | Non
             for i, st in enumerate(raw["stations"])
         )
         _check_body_stations(stations, source)
-        return FuselageSpec(stations=stations, parametric=None)
+        return FuselageSpec(
+            stations=stations, parametric=None, end_behind_tails=raw["end_behind_tails"]
+        )
     for key in ("length", "max_width", "max_height", "nose_length", "tail_cone_length"):
         if raw[key] is None:
             raise InputError(
@@ -274,7 +289,7 @@ def fuselage_spec(raw: dict[str, Any] | None, source: str) -> FuselageSpec | Non
             source=source,
             path="fuselage.corner_radius",
         )
-    return FuselageSpec(stations=(), parametric=body)
+    return FuselageSpec(stations=(), parametric=body, end_behind_tails=raw["end_behind_tails"])
 
 
 def _body_shape_keys(raw: dict[str, Any], path: str, source: str) -> tuple[str, float, float]:

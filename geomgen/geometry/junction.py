@@ -22,7 +22,7 @@ from geomgen.design import BodyStation
 from geomgen.errors import InputError
 from geomgen.geometry.body_side import body_loops, body_side, contains
 from geomgen.geometry.frame import place
-from geomgen.geometry.layout import Layout, SurfaceLayout
+from geomgen.geometry.layout import Layout, SurfaceLayout, control_body_side
 from geomgen.geometry.mount import Junction
 from geomgen.shapes import fuselage
 from geomgen.sizing.aircraft import SurfaceSizing, wetted_area
@@ -204,17 +204,17 @@ def _check_controls_outboard(
     side = "centre" if not ss.planform.symmetric else "right"
     for c in (c for c in sl.controls if c.side == side):
         spec = next(x for x in ss.spec.controls if x.kind == c.kind)
-        f0 = c.hinge[0].chord_fraction
-        unit = np.column_stack([np.linspace(f0, 1.0, 9), np.zeros(9)])
-        s_side = body_side(ss, stations, unit, np.full(9, c.s_start))
-        if np.all(np.isnan(s_side)):
+        found = control_body_side(ss, stations, c.hinge[0].chord_fraction, c.s_start)
+        if math.isnan(found):
             continue  # the body ends ahead of the moving part
-        need = float(np.nanmax(s_side)) + spec.side_gap
-        if c.s_start < need - 1e-9:
+        need = found + spec.side_gap
+        # (1 micrometre: a start placed from the body side lands on it to the iteration's
+        # precision)
+        if c.s_start < need - 1e-6:
             raise InputError(
-                f"starts inside the fuselage: the body side is {np.nanmax(s_side):.4f} m from "
-                f"the root there, so start it at {math.ceil(need * 1000) / 1000:.3f} m or more "
-                f"(got {c.s_start:.4f} m)",
+                f"starts inside the fuselage: the body side is {found:.4f} m from the root "
+                f"there, so start it at {math.ceil(need * 1000) / 1000:.3f} m or more (got "
+                f"{c.s_start:.4f} m), or place it from the body side (span_start: body_side)",
                 source=source,
                 path=f"{ss.key}.controls.{c.kind}.span_start",
             )

@@ -170,12 +170,18 @@ def _mid_y(af: Airfoil, x: float) -> float:
 
 
 def lay_out(sizing: Sizing, airfoil_dirs: tuple = ()) -> Layout:
-    """Corner points and control-surface hinge lines of every surface, both sides."""
+    """Corner points and control-surface hinge lines of every surface, both sides. Control
+    surfaces placed from the body side find it on the sized fuselage."""
     source = sizing.design.source
+    body = None
+    if sizing.design.fuselage is not None:
+        from geomgen.shapes.fuselage import expand
+
+        body = expand(sizing.design.fuselage)
     return Layout(
         sizing=sizing,
         surfaces=tuple(
-            _surface(ss, airfoil_dirs, source, sizing.design.solids.te_thickness)
+            _surface(ss, airfoil_dirs, source, sizing.design.solids.te_thickness, body)
             for ss in sizing.surfaces
         ),
     )
@@ -216,7 +222,11 @@ def _check_hinge_room(
 
 
 def _surface(
-    ss: SurfaceSizing, dirs: tuple, source: str, te_thickness: float = 0.0
+    ss: SurfaceSizing,
+    dirs: tuple,
+    source: str,
+    te_thickness: float = 0.0,
+    body: tuple[BodyStation, ...] | None = None,
 ) -> SurfaceLayout:
     pf = ss.planform
     sides = ("right", "left") if pf.symmetric else ("centre",)
@@ -233,7 +243,7 @@ def _surface(
                     le_outer=_point(ss, side, b.s, 0.0),
                 )
             )
-    spans = _resolve_spans(ss, source)
+    spans = _resolve_spans(ss, source, body)
     controls = []
     comparison = None
     for spec in ss.spec.controls:
@@ -321,15 +331,66 @@ def _check_hinge_is_straight(
             )
 
 
-def _resolve_spans(ss: SurfaceSizing, source: str) -> dict[str, tuple[float, float]]:
+def control_body_side(
+    ss: SurfaceSizing, body: tuple[BodyStation, ...], chord_fraction: float, guess: float
+) -> float:
+    """Greatest station (m) of the body side along a moving part's chord (from the hinge's
+    chord fraction to the trailing edge): the fuselage's side for a wing or tail half, its top
+    for a fin. NaN where the body ends ahead of the moving part."""
+    from geomgen.geometry.body_side import body_side
+
+    unit = np.column_stack([np.linspace(chord_fraction, 1.0, 9), np.zeros(9)])
+    s_side = body_side(ss, body, unit, np.full(9, guess))
+    return math.nan if np.all(np.isnan(s_side)) else float(np.nanmax(s_side))
+
+
+def _settled_body_side(
+    ss: SurfaceSizing, body: tuple[BodyStation, ...], chord_fraction: float
+) -> float:
+    """``control_body_side`` started from its own answer until it stops moving (a swept fin
+    moves its chord along x as the station changes, so one start from the root is not
+    enough); NaN where the body ends ahead of the moving part."""
+    s = 0.0
+    for _ in range(50):
+        found = control_body_side(ss, body, chord_fraction, s)
+        if math.isnan(found) or abs(found - s) < 1e-9:
+            return found
+        s = found
+    return found
+
+
+def _span_start(ss: SurfaceSizing, c, body: tuple[BodyStation, ...] | None) -> float:
+    """Inner end of a control surface's span (m from the root): a fraction of the semi-span,
+    a length from the root, or a length outboard of the body side plus the side gap."""
+    if c.span_start_from == "body_side":
+        side = 0.0
+        if body is not None:
+            found = _settled_body_side(ss, body, c.hinge_at[0])
+            side = 0.0 if math.isnan(found) else found
+        return side + c.side_gap + c.span_start
+    return c.span_start * ss.planform.semi_span if c.span_start_is_fraction else c.span_start
+
+
+def _span_end(ss: SurfaceSizing, c) -> float:
+    """Outer end of a control surface's span (m from the root): a fraction of the semi-span,
+    a length from the root, or a length inboard of the tip."""
+    semi = ss.planform.semi_span
+    if c.span_end_from == "tip":
+        return semi - c.span_end
+    return c.span_end * semi if c.span_end_is_fraction else c.span_end
+
+
+def _resolve_spans(
+    ss: SurfaceSizing, source: str, body: tuple[BodyStation, ...] | None = None
+) -> dict[str, tuple[float, float]]:
     """Spanwise limits (m from the root) of every control surface, checked against the tip and
     against each other."""
     semi = ss.planform.semi_span
     spans: dict[str, tuple[float, float]] = {}
     for c in ss.spec.controls:
         base = f"{ss.key}.controls.{c.kind}"
-        s0 = c.span_start * semi if c.span_start_is_fraction else c.span_start
-        s1 = c.span_end * semi if c.span_end_is_fraction else c.span_end
+        s0 = _span_start(ss, c, body)
+        s1 = _span_end(ss, c)
         if s1 > semi * (1 + 1e-9):
             raise InputError(
                 f"runs past the tip: the semi-span is {semi:.3f} m (got {s1:.3f} m)",

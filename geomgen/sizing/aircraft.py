@@ -10,10 +10,14 @@ Relations used (named where they are checked in tests):
 - minimum-wetted-area tail arm: the tail cone's wetted area pi (R1 + R2) l plus the tails'
   2 (S_H + S_V) = 2 S (V_H c + V_V b) / l is least at l = sqrt(2 S (V_H c + V_V b) / (pi (R1+R2)))
 - wetted area of a surface: S_wet = S_exposed (1.977 + 0.52 t/c) for t/c > 0.05, else 2.003
+- a fuselage that follows the tails (``fuselage.end_behind_tails``): the body's end and the
+  tail arm depend on each other (the optimum arm takes the tail-cone radii from the body, the
+  body ends behind the tails the arm places); ``size`` solves the pair by fixed-point iteration
 """
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 from pathlib import Path
@@ -79,13 +83,30 @@ class TailArmRule:
 
 
 @dataclass(frozen=True)
+class BodyFit:
+    """The fuselage following the tails: the fixed point of the tail arm and the body's end
+    (m, aircraft-frame x)."""
+
+    iterations: int  # sizings run until the body's end stopped moving
+    end_behind_tails: float  # m, asked gap between the rearmost tail root TE and the body end
+    rearmost_root_te: float  # x of the rearmost tail root's trailing edge
+    body_end: float  # x of the body's end, converged
+    body_end_as_written: float  # x of the body's end in the design file
+    tail_arm: float | None  # the converged optimum arm; None when every tail arm is given
+
+
+@dataclass(frozen=True)
 class Sizing:
+    """The sized aircraft. ``design`` is the design as sized: with a fuselage that follows the
+    tails, its fuselage is the one that ends behind the tails (see ``body_fit``)."""
+
     design: Design
     stall: StallPoint
     wing: SurfaceSizing
     horizontal_tail: SurfaceSizing | None
     vertical_tail: SurfaceSizing | None
     tail_arm_rule: TailArmRule | None
+    body_fit: BodyFit | None = None
 
     @property
     def surfaces(self) -> tuple[SurfaceSizing, ...]:
@@ -111,8 +132,73 @@ def wetted_area(exposed_area: float, thickness_ratio: float) -> float:
     return exposed_area * 2.003
 
 
+#: the body's end and the tail arm must settle within this many sizings ...
+MAX_BODY_ITERATIONS = 20
+#: ... to this change of the body's end between two of them (m)
+BODY_END_TOLERANCE = 1e-7
+
+
 def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
-    """Run the sizing of a design: wing, then tails placed by their arms."""
+    """Run the sizing of a design: wing, then tails placed by their arms; with a fuselage that
+    follows the tails, repeated until the body's end and the tail arm agree."""
+    body = design.fuselage
+    if body is None or body.end_behind_tails is None:
+        return _size_once(design, airfoil_dirs)
+    if design.horizontal_tail is None and design.vertical_tail is None:
+        raise InputError(
+            "needs a tail to follow: this design has no horizontal or vertical tail",
+            source=design.source,
+            path="fuselage.end_behind_tails",
+        )
+    from geomgen.shapes.body_follow import body_end, follow
+
+    gap = body.end_behind_tails
+    written = body_end(body)
+    current = design
+    ends = []
+    for i in range(1, MAX_BODY_ITERATIONS + 1):
+        sized = _size_once(current, airfoil_dirs)
+        te = max(_root_te_x(t) for t in sized.surfaces if t.key != "wing")
+        end = te + gap
+        ends.append(end)
+        assert current.fuselage is not None
+        if abs(end - body_end(current.fuselage)) <= BODY_END_TOLERANCE:
+            rule = sized.tail_arm_rule
+            fit = BodyFit(
+                iterations=i,
+                end_behind_tails=gap,
+                rearmost_root_te=te,
+                body_end=end,
+                body_end_as_written=written,
+                tail_arm=None if rule is None else rule.optimum_arm,
+            )
+            return dataclasses.replace(sized, body_fit=fit)
+        why = (
+            f"the rearmost tail root's trailing edge lies at x = {te:.3f} m and "
+            f"fuselage.end_behind_tails is {gap * 1000:g} mm"
+        )
+        current = dataclasses.replace(
+            current, fuselage=follow(current.fuselage, end, design.source, why)
+        )
+    raise InputError(
+        f"the body's end and the tail arm did not settle in {MAX_BODY_ITERATIONS} sizings "
+        f"(the body's end moved to x = {ends[-1]:.4f} m at the last); give the tails a fixed "
+        f"tail_arm or leave end_behind_tails out",
+        source=design.source,
+        path="fuselage.end_behind_tails",
+    )
+
+
+def _root_te_x(ss: SurfaceSizing) -> float:
+    """x of a surface's root trailing edge in the aircraft frame (m): the root chord turned by
+    the incidence about its twist-axis point, as the layout places it."""
+    c = ss.planform.root_chord
+    x0 = ss.spec.twist_axis * c
+    return ss.apex_x + x0 + (c - x0) * math.cos(ss.spec.incidence)
+
+
+def _size_once(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
+    """One sizing of a design as written: wing, then tails placed by their arms."""
     req = design.requirements
     atm = isa(req.altitude, req.altitude_kind)
     q = 0.5 * atm.density * req.stall_speed**2
