@@ -317,3 +317,13 @@ def test_the_wide_walk_gives_geometry_or_a_line_with_a_key_and_a_number() -> Non
     # the walk reaches far past the demo (a 25 kn, 1200 kg design needs a 58 m^2 wing), yet
     # most of it is geometry: record the count so a regression shows
     assert outcome["geometry"] >= 50, outcome
+
+
+def test_report_json_states_the_fixed_point() -> None:
+    from geomgen.outputs.report import report_data
+
+    layout = mounted(with_requirements(demo_document(), 35, 800))
+    follows = report_data(layout)["fuselage"]["follows_tails"]
+    assert follows["iterations"]["value"] >= 2
+    assert follows["end_x"]["value"] == pytest.approx(layout.body[-1].x, abs=1e-9)
+    assert follows["end_x"]["value"] > follows["end_x_as_written"]["value"]  # a longer arm

@@ -88,7 +88,7 @@ def body_data(layout: Layout) -> dict[str, Any]:
     body = layout.body
     assert body is not None
     front, rear = fuselage.tail_cone_radii(body)
-    return {
+    out = {
         "station_count": _num(len(body)),
         "nose_x": _q(body[0].x, "length"),
         "length": _q(body[-1].x - body[0].x, "length"),
@@ -101,6 +101,17 @@ def body_data(layout: Layout) -> dict[str, Any]:
             "rear": _q(rear, "length"),
         },
     }
+    fit = layout.sizing.body_fit
+    if fit is not None:  # the tail cone followed the tails: the fixed point of body and arm
+        out["follows_tails"] = {
+            "iterations": _num(fit.iterations),
+            "end_behind_tails": _q(fit.end_behind_tails, "length"),
+            "rearmost_tail_root_te_x": _q(fit.rearmost_root_te, "length"),
+            "end_x": _q(fit.body_end, "length"),
+            "end_x_as_written": _q(fit.body_end_as_written, "length"),
+            "converged_tail_arm": None if fit.tail_arm is None else _q(fit.tail_arm, "length"),
+        }
+    return out
 
 
 def _surface_data(sl: SurfaceLayout) -> dict[str, Any]:
