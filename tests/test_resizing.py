@@ -327,3 +327,22 @@ def test_report_json_states_the_fixed_point() -> None:
     assert follows["iterations"]["value"] >= 2
     assert follows["end_x"]["value"] == pytest.approx(layout.body[-1].x, abs=1e-9)
     assert follows["end_x"]["value"] > follows["end_x_as_written"]["value"]  # a longer arm
+
+
+def test_sweep_summary_names_the_failing_key(tmp_path) -> None:
+    """A variant refused by the sizing carries its key path in summary.csv's failing_key."""
+    import csv
+
+    from geomgen.commands.sweep import run_sweep
+
+    doc = fixed_body(demo_document())
+    doc.pop("model", None)
+    path = tmp_path / "fixed.yaml"
+    path.write_text(yaml.safe_dump(doc, sort_keys=False))
+    result = run_sweep(
+        path, ["requirements.stall_speed=30,45 kn"], tmp_path / "out", build=False, jobs=1
+    )
+    with open(result.csv_path, newline="") as f:
+        rows = list(csv.DictReader(f))
+    assert [r["failing_key"] for r in rows] == ["horizontal_tail.tail_arm", ""]
+    assert rows[1]["status"] == "ok"

@@ -89,7 +89,10 @@ def run_variant(design_path: str, build: bool = False) -> dict:
                 row[column] = value
         row["status"] = "ok"
     except GeomgenError as err:
-        row = {"status": f"failed: {_one_line(str(err))}"}
+        # the key path (bad input) or the part (geometry) that stopped it, in a column of its
+        # own so the envelope can be read off the summary
+        where = getattr(err, "path", None) or getattr(err, "part", None) or ""
+        row = {"status": f"failed: {_one_line(str(err))}", "failing_key": where}
     except Exception as err:  # a variant must not stop the sweep; its row says what happened
         row = {"status": f"failed: {type(err).__name__}: {_one_line(str(err))}"}
     return row

@@ -53,7 +53,7 @@ def _cell(value: Any) -> str:
 
 
 def summary_columns(varies: Sequence[Vary], rows: Sequence[dict], build: bool) -> list[str]:
-    cols = ["variant", *(v.key for v in varies), "status"]
+    cols = ["variant", *(v.key for v in varies), "status", "failing_key"]
     cols += [c for c, _, _ in REPORT_COLUMNS]
     cols += [c for c, _, _ in EXPOSED_COLUMNS if any(c in r for r in rows)]
     if build:
