@@ -22,7 +22,7 @@ from geomgen.design import BodyStation
 from geomgen.errors import InputError
 from geomgen.geometry.body_side import body_loops, body_side, contains
 from geomgen.geometry.frame import place
-from geomgen.geometry.layout import Layout, SurfaceLayout, control_body_side
+from geomgen.geometry.layout import Layout, SurfaceLayout, settled_body_side
 from geomgen.geometry.mount import Junction
 from geomgen.shapes import fuselage
 from geomgen.sizing.aircraft import SurfaceSizing, wetted_area
@@ -204,7 +204,7 @@ def _check_controls_outboard(
     side = "centre" if not ss.planform.symmetric else "right"
     for c in (c for c in sl.controls if c.side == side):
         spec = next(x for x in ss.spec.controls if x.kind == c.kind)
-        found = control_body_side(ss, stations, c.hinge[0].chord_fraction, c.s_start)
+        found = settled_body_side(ss, stations, c.hinge[0].chord_fraction, c.s_start)
         if math.isnan(found):
             continue  # the body ends ahead of the moving part
         need = found + spec.side_gap

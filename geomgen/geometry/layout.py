@@ -344,13 +344,13 @@ def control_body_side(
     return math.nan if np.all(np.isnan(s_side)) else float(np.nanmax(s_side))
 
 
-def _settled_body_side(
-    ss: SurfaceSizing, body: tuple[BodyStation, ...], chord_fraction: float
+def settled_body_side(
+    ss: SurfaceSizing, body: tuple[BodyStation, ...], chord_fraction: float, start: float = 0.0
 ) -> float:
     """``control_body_side`` started from its own answer until it stops moving (a swept fin
     moves its chord along x as the station changes, so one start from the root is not
     enough); NaN where the body ends ahead of the moving part."""
-    s = 0.0
+    s = start
     for _ in range(50):
         found = control_body_side(ss, body, chord_fraction, s)
         if math.isnan(found) or abs(found - s) < 1e-9:
@@ -365,7 +365,7 @@ def _span_start(ss: SurfaceSizing, c, body: tuple[BodyStation, ...] | None) -> f
     if c.span_start_from == "body_side":
         side = 0.0
         if body is not None:
-            found = _settled_body_side(ss, body, c.hinge_at[0])
+            found = settled_body_side(ss, body, c.hinge_at[0])
             side = 0.0 if math.isnan(found) else found
         return side + c.side_gap + c.span_start
     return c.span_start * ss.planform.semi_span if c.span_start_is_fraction else c.span_start
