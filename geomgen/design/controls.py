@@ -14,65 +14,52 @@ from geomgen.design.common import DEG, FRACTION
 from geomgen.design.fields import AnyOf, Flag, ListOf, Mapping, Number, Quantity, Text, between, ge
 from geomgen.errors import InputError
 
+
 #: the inner end of a control surface: as a position from the root, or from the body side
-_SPAN_START = AnyOf(
-    description=(
-        "inner end: a fraction of the semi-span (0 to 1), a length from the root, body_side "
-        "(at the body side plus side_gap: the fuselage's side for a wing or tail half, the top "
-        "of the body for a fin), or {body_side: LENGTH} (that much further outboard); "
-        "positions from the body side follow the body when the sizing moves the surface"
-    ),
-    options=(
-        Number(bounds=between(0.0, 1.0)),
-        Quantity(dimension="length", bounds=ge(0.0)),
-        Text(choices=("body_side",)),
-        Mapping(
-            fields=(
-                (
-                    "body_side",
-                    Quantity(
-                        dimension="length",
-                        bounds=between(0.0, 50.0),
-                        description="outboard of the body side plus side_gap",
+def _span_position(description: str, word: str, what: str, summary: str, examples: tuple) -> AnyOf:
+    """A control surface's span end: a fraction of the semi-span, a length from the root, the
+    reference ``word`` (body_side or tip) itself, or {word: LENGTH} measured from it."""
+    return AnyOf(
+        description=description,
+        options=(
+            Number(bounds=between(0.0, 1.0)),
+            Quantity(dimension="length", bounds=ge(0.0)),
+            Text(choices=(word,)),
+            Mapping(
+                fields=(
+                    (
+                        word,
+                        Quantity(dimension="length", bounds=between(0.0, 50.0), description=what),
                     ),
-                ),
-            )
+                )
+            ),
         ),
-    ),
-    summary='a fraction of the semi-span in [0, 1], a length such as "1.2 m", body_side, or '
+        summary=summary,
+        tagged=True,
+        examples=examples,
+    )
+
+
+_SPAN_START = _span_position(
+    "inner end: a fraction of the semi-span (0 to 1), a length from the root, body_side "
+    "(at the body side plus side_gap: the fuselage's side for a wing or tail half, the top "
+    "of the body for a fin), or {body_side: LENGTH} (that much further outboard); "
+    "positions from the body side follow the body when the sizing moves the surface",
+    "body_side",
+    "outboard of the body side plus side_gap",
+    'a fraction of the semi-span in [0, 1], a length such as "1.2 m", body_side, or '
     '{body_side: "20 mm"}',
-    tagged=True,
-    examples=(0.47, "0.55 m", "body_side", {"body_side": "20 mm"}),
+    (0.47, "0.55 m", "body_side", {"body_side": "20 mm"}),
 )
 #: the outer end: as a position from the root, or from the tip
-_SPAN_END = AnyOf(
-    description=(
-        "outer end: a fraction of the semi-span (0 to 1), a length from the root, tip, or "
-        "{tip: LENGTH} (that much inboard of the tip); positions from the tip follow the span"
-    ),
-    options=(
-        Number(bounds=between(0.0, 1.0)),
-        Quantity(dimension="length", bounds=ge(0.0)),
-        Text(choices=("tip",)),
-        Mapping(
-            fields=(
-                (
-                    "tip",
-                    Quantity(
-                        dimension="length",
-                        bounds=between(0.0, 50.0),
-                        description="inboard of the tip",
-                    ),
-                ),
-            )
-        ),
-    ),
-    summary='a fraction of the semi-span in [0, 1], a length such as "2.1 m", tip, or '
-    '{tip: "150 mm"}',
-    tagged=True,
-    examples=(0.94, "2.1 m", "tip", {"tip": "150 mm"}),
+_SPAN_END = _span_position(
+    "outer end: a fraction of the semi-span (0 to 1), a length from the root, tip, or "
+    "{tip: LENGTH} (that much inboard of the tip); positions from the tip follow the span",
+    "tip",
+    "inboard of the tip",
+    'a fraction of the semi-span in [0, 1], a length such as "2.1 m", tip, or {tip: "150 mm"}',
+    (0.94, "2.1 m", "tip", {"tip": "150 mm"}),
 )
-
 
 _HINGE_AT = AnyOf(
     description=(
