@@ -101,7 +101,11 @@ def _parser() -> argparse.ArgumentParser:
     )
     sweep.add_argument("--out", default="out", help="output folder (default: out)")
     sweep.add_argument(
-        "--plot", default=None, metavar="X:Y[,X:Y...]", help="plot summary columns to sweep.png"
+        "--plot",
+        default=None,
+        metavar="X:Y[,X:Y...]",
+        help="plot summary columns to sweep.png; a pair of two varied keys draws a "
+        "feasibility map (each variant marked ok or by its failing key)",
     )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p

@@ -180,3 +180,98 @@ def test_a_grid_over_the_limit_is_refused(tmp_path):
     assert code == 2
     assert "--vary" in stderr and "500" in stderr
     assert not (tmp_path / "veyra-t2-sweep").exists()
+
+
+def _png_size(png: bytes) -> tuple[int, int]:
+    """Width and height from the IHDR chunk, the first after the signature (PNG spec, 11.2.2)."""
+    import struct
+
+    assert png[12:16] == b"IHDR"
+    return struct.unpack(">II", png[16:24])
+
+
+def test_feasibility_map_marks_each_variant_ok_or_by_its_failing_key(tmp_path):
+    from geomgen.commands.sweep_summary import NO_KEY_MARK, OK_MARK, feasibility_maps
+
+    # 65 kn at 300 kg puts the tails over the cabin of the following body (a refusal on
+    # fuselage.end_behind_tails measured in the wide walk); the other three corners size
+    code, stdout, _ = sweep(
+        tmp_path,
+        "--vary",
+        "requirements.stall_speed=45,65 kn",
+        "--vary",
+        "requirements.gross_weight=300,650 kg",
+        "--plot",
+        "requirements.stall_speed:requirements.gross_weight,requirements.stall_speed:wing_area_m2",
+    )
+    assert code == 1, stdout  # a sweep with a refused variant exits 1
+    assert "3 variant(s) ran, 1 failed" in stdout
+    got = rows(tmp_path)
+    keys = ["requirements.stall_speed", "requirements.gross_weight"]
+    maps = feasibility_maps(got, *keys, keys)
+    assert len(maps) == 1  # no third varied key: one map
+    title, points = maps[0]
+    assert title == ""
+    marks = {(x, y): m for x, y, m in points}
+    assert len(marks) == 4
+    # each point is the row's own values and its own status or failing key
+    for r in got:
+        x, y = float(r[keys[0]].split()[0]), float(r[keys[1]].split()[0])
+        want = OK_MARK if r["status"] == "ok" else (r["failing_key"] or NO_KEY_MARK)
+        assert marks[(x, y)] == want
+    assert marks[(65.0, 300.0)] == "fuselage.end_behind_tails"
+    assert sum(m == OK_MARK for m in marks.values()) == 3
+    # two panels (the map and one line plot) of 3.6 in at 110 dpi: 792 px high
+    png = (tmp_path / "veyra-t2-sweep" / "sweep.png").read_bytes()
+    assert _png_size(png)[1] == pytest.approx(2 * 3.6 * 110, abs=2)
+
+
+def test_feasibility_map_with_a_third_varied_key_is_one_map_per_value(tmp_path):
+    from geomgen.commands.sweep_summary import feasibility_maps
+
+    code, stdout, _ = sweep(
+        tmp_path,
+        "--vary",
+        "requirements.stall_speed=42,45 kn",
+        "--vary",
+        "wing.aspect_ratio=7.4,8.2",
+        "--vary",
+        "requirements.gross_weight=600,650 kg",
+        "--plot",
+        "requirements.stall_speed:wing.aspect_ratio",
+    )
+    assert code == 0, stdout
+    keys = ["requirements.stall_speed", "wing.aspect_ratio", "requirements.gross_weight"]
+    maps = feasibility_maps(rows(tmp_path), keys[0], keys[1], keys)
+    assert [t for t, _ in maps] == [
+        "requirements.gross_weight=600 kg",
+        "requirements.gross_weight=650 kg",
+    ]
+    assert all(len(p) == 4 for _, p in maps)
+    png = (tmp_path / "veyra-t2-sweep" / "sweep.png").read_bytes()
+    assert _png_size(png)[1] == pytest.approx(2 * 3.6 * 110, abs=2)
+
+
+@pytest.mark.parametrize(
+    "plot, words",
+    [
+        ("requirements.stall_speed:requirements.stall_speed", "two different varied keys"),
+        ("requirements.stall_speed:wing.aspect_ratio", "at most 12"),
+    ],
+)
+def test_feasibility_map_refusals(tmp_path, plot, words):
+    code, _, stderr = sweep(
+        tmp_path,
+        "--vary",
+        "requirements.stall_speed=42,45 kn",
+        "--vary",
+        "wing.aspect_ratio=7.4,8.2",
+        "--vary",
+        "requirements.gross_weight=600:665:5 kg",  # 14 values: 14 maps
+        "--plot",
+        plot,
+    )
+    assert code == 2
+    assert "--plot" in stderr and words in stderr
+    assert len(stderr.strip().splitlines()) == 1
+    assert not (tmp_path / "veyra-t2-sweep").exists()  # refused before anything is written

@@ -26,6 +26,7 @@ from geomgen.commands.sweep_summary import (
     BUILD_COLUMNS,
     EXPOSED_COLUMNS,
     REPORT_COLUMNS,
+    check_plot_maps,
     parse_plot,
     write_plot,
     write_summary,
@@ -191,6 +192,7 @@ def run_sweep(
     folder = Path(out_root) / f"{base.name}-sweep"
     allowed = [v.key for v in varies] + [c for c, _, _ in REPORT_COLUMNS + EXPOSED_COLUMNS]
     pairs = parse_plot(plot, allowed + (list(BUILD_COLUMNS) if build else []))
+    check_plot_maps(pairs, [v.key for v in varies], {v.key: len(v.values) for v in varies})
     if folder.exists() and not folder.is_dir():
         raise InputError("output path exists and is not a folder", source=str(folder))
 

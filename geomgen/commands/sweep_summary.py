@@ -109,27 +109,125 @@ def _numeric(cell: str) -> tuple[float | None, str]:
     return float(m["num"]), m["unit"]
 
 
+#: the mark of a variant that ran, in a feasibility map
+OK_MARK = "ok"
+#: the mark of a failed variant whose error named no key or part
+NO_KEY_MARK = "failed (no key named)"
+#: at most this many maps (one per combination of the varied keys not on the axes)
+MAX_MAPS = 12
+
+
+def feasibility_maps(
+    rows: Sequence[dict[str, str]], x: str, y: str, keys: Sequence[str]
+) -> list[tuple[str, list[tuple[float, float, str]]]]:
+    """The feasibility map(s) of two varied keys ``x`` and ``y``: one map per combination of
+    the other varied keys' values (titled by them), each a list of (x value, y value, mark),
+    the mark ``ok`` or the failing key path (or part) of the summary's ``failing_key``.
+    Values are in the unit each cell states."""
+    others = [k for k in keys if k not in (x, y)]
+    maps: dict[str, list[tuple[float, float, str]]] = {}
+    for r in rows:
+        (xv, _), (yv, _) = _numeric(r[x]), _numeric(r[y])
+        if xv is None or yv is None:
+            continue
+        ok = r["status"] == OK_MARK
+        mark = OK_MARK if ok else (r.get("failing_key") or NO_KEY_MARK)
+        title = ", ".join(f"{k}={r[k]}" for k in others)
+        maps.setdefault(title, []).append((xv, yv, mark))
+    return list(maps.items())
+
+
+def _map_panels(keys: Sequence[str], pairs: Sequence[tuple[str, str]], rows) -> int:
+    n = 0
+    for x, y in pairs:
+        if x in keys and y in keys:
+            n += max(1, len(feasibility_maps(rows, x, y, keys)))
+        else:
+            n += 1
+    return n
+
+
+def check_plot_maps(pairs: Sequence[tuple[str, str]], keys: Sequence[str], counts: dict) -> None:
+    """Refuse a feasibility map that would need more than MAX_MAPS panels (``counts``: the
+    number of values of each varied key)."""
+    for x, y in pairs:
+        if x in keys and y in keys:
+            if x == y:
+                raise InputError(
+                    f"a feasibility map needs two different varied keys (got {x!r} twice)",
+                    path="--plot",
+                )
+            maps = 1
+            for k in keys:
+                if k not in (x, y):
+                    maps *= counts[k]
+            if maps > MAX_MAPS:
+                raise InputError(
+                    f"a map of {x} against {y} would be drawn {maps} times (once per value of "
+                    f"the other varied keys); allowed: at most {MAX_MAPS}",
+                    path="--plot",
+                )
+
+
+def _draw_map(ax, points: list[tuple[float, float, str]], x: str, y: str, units, title: str):
+    marks = sorted({m for _, _, m in points}, key=lambda m: (m != OK_MARK, m))
+    shapes = "XsD^v<>Ph*p"
+    for n, mark in enumerate(marks):
+        pts = [(a, b) for a, b, m in points if m == mark]
+        if mark == OK_MARK:
+            style = {"marker": "o", "color": "tab:green"}
+        else:
+            style = {"marker": shapes[(n - 1) % len(shapes)], "color": f"C{(n + 2) % 10}"}
+        ax.scatter(*zip(*pts, strict=True), s=60, label=f"{mark} ({len(pts)})", **style)
+    ax.set_xlabel(f"{x} ({units[x]})" if units[x] else x)
+    ax.set_ylabel(f"{y} ({units[y]})" if units[y] else y)
+    ax.set_title(f"feasibility: {title}" if title else "feasibility", fontsize="medium")
+    ax.grid(True, alpha=0.3)
+    ax.legend(
+        fontsize="small",
+        title="ok or failing key",
+        title_fontsize="small",
+        loc="upper left",
+        bbox_to_anchor=(1.01, 1.0),
+    )
+
+
 def write_plot(path: Path, csv_path: Path, pairs: Sequence[tuple[str, str]], keys: list[str]):
-    """Y against X for each pair (rows that ran; one line per combination of the other
-    varied values), stacked, as a PNG drawn with matplotlib's object API and Agg."""
+    """Y against X for each pair, stacked, as a PNG drawn with matplotlib's object API and Agg.
+    A pair of two varied keys is a feasibility map: every variant at its two values, marked ok
+    or by its failing key (one map per combination of the other varied values). Any other
+    pair plots the rows that ran, one line per combination of the other varied values."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
     with csv_path.open(encoding="utf-8", newline="") as f:
-        rows = [r for r in csv.DictReader(f) if r["status"] == "ok"]
-    fig = Figure(figsize=(7.0, 3.6 * len(pairs)), layout="constrained")
+        every = list(csv.DictReader(f))
+    rows = [r for r in every if r["status"] == OK_MARK]
+    panels = _map_panels(keys, pairs, every)
+    fig = Figure(figsize=(7.0, 3.6 * panels), layout="constrained")
     FigureCanvasAgg(fig)
-    for n, (x, y) in enumerate(pairs):
-        ax = fig.add_subplot(len(pairs), 1, n + 1)
+    n = 0
+    for x, y in pairs:
+        units = {x: "", y: ""}
+        for r in every:
+            units[x] = units[x] or _numeric(r[x])[1]
+            units[y] = units[y] or _numeric(r[y])[1]
+        if x in keys and y in keys:
+            for title, points in feasibility_maps(every, x, y, keys) or [("", [])]:
+                n += 1
+                ax = fig.add_subplot(panels, 1, n)
+                if points:
+                    _draw_map(ax, points, x, y, units, title)
+            continue
+        n += 1
+        ax = fig.add_subplot(panels, 1, n)
         # a varied X: one line per combination of the other varied values; else one line
         others = [k for k in keys if k not in (x, y)] if x in keys else []
         groups: dict[tuple[str, ...], list[tuple[float, float]]] = {}
-        units = {x: "", y: ""}
         for r in rows:
-            (xv, xu), (yv, yu) = _numeric(r[x]), _numeric(r[y])
+            (xv, _), (yv, _) = _numeric(r[x]), _numeric(r[y])
             if xv is None or yv is None:
                 continue
-            units[x], units[y] = xu or units[x], yu or units[y]
             groups.setdefault(tuple(r[k] for k in others), []).append((xv, yv))
         for label, points in groups.items():
             points.sort()
