@@ -8,7 +8,10 @@ The build cache keeps a side as BREP files with their volumes and the data its c
 
 from __future__ import annotations
 
+import tempfile
+from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
 import cadquery as cq
 import numpy as np
@@ -44,11 +47,17 @@ def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=
                 sb = load_side(sl, side, entry)
             else:
                 if side == "left" and right is not None:
-                    sb = mirror_side(right)
+                    made = mirror_side(right)
                 else:
-                    sb = build_side(sl, side, points, te, dirs)
-                if store is not None:
-                    store.put(key, lambda folder, sb=sb: save_side(sb, folder))
+                    made = build_side(sl, side, points, te, dirs)
+                # one path: a side just built is used as read back from its BREP files, as a
+                # cached one is, so fresh, cached and resumed builds mesh the same solids
+                sb = _through_brep(
+                    store,
+                    key,
+                    lambda folder, m=made: save_side(m, folder),
+                    lambda folder, sl=sl, side=side: load_side(sl, side, folder),
+                )
             sides.append(sb)
             chords = [st.chord for st in sl.sizing.planform.stations]
             fixed_name = base if side == "centre" else f"{base}-{side}"
@@ -84,9 +93,13 @@ def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=
             if entry is not None:
                 shape = _load_shape(entry, "fuselage")
         if shape is None:
-            shape = build_fuselage(body)
-            if store is not None:
-                store.put(key, lambda folder: _save_shape(shape, folder, "fuselage"))
+            made = build_fuselage(body)
+            shape = _through_brep(
+                store,
+                key if store is not None else "",
+                lambda folder: _save_shape(made, folder, "fuselage"),
+                lambda folder: _load_shape(folder, "fuselage"),
+            )
         parts.append(
             Part("fuselage", "fuselage", "fuselage", "centre", shape, False, 0.0, size_min * MM)
         )
@@ -105,6 +118,16 @@ def side_key(sl: SurfaceLayout, side: str, layout: Layout, dirs: tuple) -> str:
     names = sorted({n for st in sl.sizing.planform.stations for n in st.airfoil[:2]})
     sections = [(n, airfoils.load(n, dirs).upper, airfoils.load(n, dirs).lower) for n in names]
     return key_of("surface side", side, sl, layout.sizing.design.solids, sections)
+
+
+def _through_brep(store, key: str, save: Callable[[Path], None], load: Callable[[Path], Any]):
+    """Save what was just built (into the cache entry ``key``, or a temporary folder without
+    a cache) and return it as read back: the solids a cache hit would give, to the bit."""
+    if store is not None:
+        return load(store.put(key, save))
+    with tempfile.TemporaryDirectory(prefix="geomgen-brep-") as tmp:
+        save(Path(tmp))
+        return load(Path(tmp))
 
 
 def _save_shape(shape: cq.Shape, folder: Path, name: str) -> None:
