@@ -360,3 +360,21 @@ def test_the_holder_record_of_a_stale_lock_file_is_overwritten(tmp_path: Path) -
     with FolderLock(target, "size"):
         record = json.loads(lock_path(target).read_text(encoding="utf-8"))
         assert record["pid"] == os.getpid() and record["command"] == "size"
+
+
+def test_a_full_disk_in_the_build_cache_is_one_line_and_no_half_made_entry(
+    tmp_path: Path,
+) -> None:
+    from geomgen.store.cache import Cache
+
+    def fill(folder: Path) -> None:
+        (folder / "part.brep").write_text("half", encoding="utf-8")
+        _no_space()
+
+    cache = Cache(tmp_path / ".cache")
+    with pytest.raises(geomgen.errors.OutputError) as caught:
+        cache.put("ab" * 32, fill)
+    assert str(caught.value) == (
+        f"{tmp_path / '.cache'}: cannot write the build cache (No space left on device)"
+    )
+    assert [p for p in (tmp_path / ".cache").rglob("*") if p.is_file()] == []
