@@ -1,12 +1,14 @@
 """Command line: ``geomgen size``, ``geomgen build``, ``geomgen schema``, ``geomgen --version``.
 
 Thin on purpose: parse arguments, call the pipeline, print, map errors to exit codes
-(0 done, 1 geometry could not be built or a check failed, 2 bad input).
+(0 done, 1 geometry could not be built, a check failed or the outputs could not be written,
+2 bad input, 130 interrupted, 141 standard output was a pipe closed early).
 """
 
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
 import sys
 from pathlib import Path
@@ -17,8 +19,22 @@ from geomgen.commands.pipeline import run_build, run_size
 from geomgen.errors import GeomgenError, InputError
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse, whose --help and --version text to a closed pipe or a full disk ends like
+    every other output (argparse itself would drop the error and exit 0)."""
+
+    def _print_message(self, message: str, file=None) -> None:
+        if not message:
+            return
+        if file is None or file is sys.stderr:
+            with contextlib.suppress(OSError):
+                sys.stderr.write(message)
+            return
+        _say(message, end="", file=file)
+
+
 def _parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = _Parser(
         prog="geomgen",
         description="Turn a sized light-aircraft design file into geometry and reports.",
         epilog="The output is a design aid, not an airworthiness or structural substantiation.",
@@ -134,24 +150,92 @@ def _terminate_as_interrupt() -> None:
         signal.signal(signal.SIGTERM, handler)
 
 
+class _StdoutClosed(Exception):
+    """The reader of standard output went away (``geomgen schema | head -1``)."""
+
+
+class _StdoutFailed(Exception):
+    """Standard output cannot be written (a full disk, ``> /dev/full``); args[0] the OSError."""
+
+
+def _say(*args, **kwargs) -> None:
+    """print() to standard output, its failures told apart from those of the commands."""
+    try:
+        print(*args, **kwargs)
+    except BrokenPipeError:
+        raise _StdoutClosed from None
+    except OSError as err:
+        raise _StdoutFailed(err) from None
+
+
+def _flush_stdout() -> None:
+    """Flush standard output now: a write error may only surface at the flush."""
+    try:
+        sys.stdout.flush()
+    except BrokenPipeError:
+        raise _StdoutClosed from None
+    except OSError as err:
+        raise _StdoutFailed(err) from None
+
+
+def _silence_stdout() -> None:
+    """Point the file descriptor of standard output at the null device, so that the
+    interpreter's own flush at exit does not fail again on what is still buffered."""
+    import os
+
+    try:
+        fd = sys.stdout.fileno()
+    except (AttributeError, OSError, ValueError):  # replaced in-process (tests): nothing to do
+        return
+    null = os.open(os.devnull, os.O_WRONLY)
+    try:
+        os.dup2(null, fd)
+    finally:
+        os.close(null)
+
+
 def main(argv: list[str] | None = None) -> int:
-    args = _parser().parse_args(argv)
-    if argv is None:  # run as the command (tests call main with arguments, in-process)
-        _terminate_as_interrupt()
+    """Run one command; the exit code. A closed pipe on standard output ends the run quietly
+    with 141 (128 + SIGPIPE, what a shell reports for a process a broken pipe ended); a
+    standard output that cannot be written gives one line on stderr and 1."""
+    import signal
+
+    try:
+        try:
+            args = _parser().parse_args(argv)
+        except SystemExit:  # --help, --version (on stdout) or a usage error (on stderr)
+            _flush_stdout()
+            raise
+        if argv is None:  # run as the command (tests call main with arguments, in-process)
+            _terminate_as_interrupt()
+        code = _run(args)
+        _flush_stdout()
+        return code
+    except _StdoutClosed:
+        _silence_stdout()
+        return 128 + signal.SIGPIPE
+    except _StdoutFailed as failed:
+        _silence_stdout()
+        err = failed.args[0]
+        print(f"geomgen: error: cannot write the output: {err.strerror or err}", file=sys.stderr)
+        return 1
+
+
+def _run(args: argparse.Namespace) -> int:
     try:
         if args.command == "schema":
             from geomgen.design import json_schema
 
-            print(json.dumps(json_schema(), indent=2))
+            _say(json.dumps(json_schema(), indent=2))
             return 0
         if args.command == "diff":
             from geomgen.commands import diff
 
             result = diff.diff_paths(Path(args.old), Path(args.new), args.tolerance)
             if args.format == "json":
-                print(diff.to_json(result))
+                _say(diff.to_json(result))
             else:
-                print(diff.to_markdown(result, args.old, args.new), end="")
+                _say(diff.to_markdown(result, args.old, args.new), end="")
             return 0 if result["equal"] else 1
         if args.command == "sweep":
             from geomgen.commands.sweep import run_sweep
@@ -166,7 +250,7 @@ def main(argv: list[str] | None = None) -> int:
                 plot=args.plot,
             )
             plotted = f" and {swept.plot_path}" if swept.plot_path else ""
-            print(
+            _say(
                 f"geomgen: wrote {swept.csv_path}{plotted}: {swept.passed} variant(s) ran, "
                 f"{swept.failed} failed"
             )
@@ -175,7 +259,7 @@ def main(argv: list[str] | None = None) -> int:
             folder = run_size(
                 Path(args.design), Path(args.out), args.units, drawings=not args.no_drawings
             )
-            print(f"geomgen: wrote the reports and drawings in {folder}")
+            _say(f"geomgen: wrote the reports and drawings in {folder}")
             return 0
         if args.command == "build":
             only = None
@@ -186,7 +270,7 @@ def main(argv: list[str] | None = None) -> int:
                 Path(args.out),
                 args.units,
                 only,
-                progress=lambda line: print(f"geomgen: {line}", flush=True),
+                progress=lambda line: _say(f"geomgen: {line}", flush=True),
                 fresh=args.fresh,
             )
             _summary(result)
@@ -207,12 +291,12 @@ def main(argv: list[str] | None = None) -> int:
                 Path(args.out),
                 args.scale,
                 span,
-                progress=lambda line: print(f"geomgen: {line}", flush=True),
+                progress=lambda line: _say(f"geomgen: {line}", flush=True),
             )
-            print(f"\n{'piece':<34} {'volume (cm^3)':>14} {'mass (g)':>9}")
+            _say(f"\n{'piece':<34} {'volume (cm^3)':>14} {'mass (g)':>9}")
             for name, volume_mm3, mass in result.pieces:
-                print(f"{name:<34} {volume_mm3 / 1000:>14.2f} {mass:>9.1f}")
-            print(
+                _say(f"{name:<34} {volume_mm3 / 1000:>14.2f} {mass:>9.1f}")
+            _say(
                 f"\ngeomgen: model at 1:{1 / result.scale:.4g}; all {result.checks} checks "
                 f"passed; outputs in {result.folder}"
             )
@@ -228,12 +312,12 @@ def main(argv: list[str] | None = None) -> int:
 
 def _summary(result) -> None:
     if result.unchanged:
-        print(f"geomgen: unchanged since the last build; outputs kept in {result.folder}")
+        _say(f"geomgen: unchanged since the last build; outputs kept in {result.folder}")
         return
-    print(f"\n{'part':<20} {'volume (cm^3)':>14} {'STL tolerance (mm)':>19}")
+    _say(f"\n{'part':<20} {'volume (cm^3)':>14} {'STL tolerance (mm)':>19}")
     for name, volume_mm3, deflection in result.parts:
-        print(f"{name:<20} {volume_mm3 / 1000:>14.1f} {deflection:>19.3f}")
-    print(f"\ngeomgen: all {result.checks} checks passed; outputs in {result.folder}")
+        _say(f"{name:<20} {volume_mm3 / 1000:>14.1f} {deflection:>19.3f}")
+    _say(f"\ngeomgen: all {result.checks} checks passed; outputs in {result.folder}")
 
 
 if __name__ == "__main__":

@@ -2,6 +2,8 @@
 
 InputError    -> the design file or an input file is wrong (exit 2)
 GeometryError -> the geometry could not be built or a self-check failed (exit 1)
+OutputError   -> the outputs could not be written: a full disk, an I/O error (exit 1)
+FolderBusyError -> another geomgen run is writing the same output folder (exit 1)
 """
 
 from __future__ import annotations
@@ -39,3 +41,17 @@ class GeometryError(GeomgenError):
         self.operation = operation
         prefix = " ".join(p for p in (part, operation) if p)
         super().__init__(f"{prefix}: {message}" if prefix else message)
+
+
+class OutputError(GeomgenError):
+    """The outputs could not be written although the input was good: a full disk, an I/O
+    error (exit code 1). The message names the folder and the reason; nothing half-written
+    is left behind."""
+
+    exit_code = 1
+
+
+class FolderBusyError(GeomgenError):
+    """Another geomgen run holds the lock of the output folder (exit code 1)."""
+
+    exit_code = 1

@@ -13,6 +13,7 @@ from pathlib import Path
 from geomgen.commands.pipeline import _checks_json, _size
 from geomgen.errors import GeometryError
 from geomgen.store.folder import OutputFolder
+from geomgen.store.lock import FolderLock
 
 
 @dataclass(frozen=True)
@@ -36,7 +37,20 @@ def run_model(
 ) -> ModelResult:
     """Printable wind-tunnel model pieces: scaled solids with thickened trailing edges, cut
     to fit the printer, with dowel, spar, sting and hinge-key holes; STL per piece, one 3MF,
-    a parts list, a model report and checks."""
+    a parts list, a model report and checks. The output folder is locked for the whole
+    run: a second run into it refuses at once."""
+    t0 = time.perf_counter()
+
+    def stage(text: str) -> None:
+        progress(f"[{time.perf_counter() - t0:6.1f} s] {text}")
+
+    d, layout, dirs = _size(design_path)
+    with FolderLock(out_root / f"{d.name}-model", "model"):
+        return _model_locked(d, layout, dirs, out_root, scale, span, stage)
+
+
+def _model_locked(d, layout, dirs, out_root, scale, span, stage) -> ModelResult:
+    """run_model past sizing, under the lock of its output folder."""
     import dataclasses
 
     import numpy as np
@@ -44,12 +58,6 @@ def run_model(
     from geomgen import design as design_module
     from geomgen.printed_model import plan as mdl
 
-    t0 = time.perf_counter()
-
-    def stage(text: str) -> None:
-        progress(f"[{time.perf_counter() - t0:6.1f} s] {text}")
-
-    d, layout, dirs = _size(design_path)
     spec = d.model if d.model is not None else design_module.default_model(d.source)
     k = mdl.model_scale(layout, spec, mdl.parse_scale(scale) if scale else None, span)
     f = 1000.0 * k

@@ -11,6 +11,7 @@ from pathlib import Path
 
 from geomgen.errors import GeometryError, InputError
 from geomgen.store.folder import OutputFolder
+from geomgen.store.lock import FolderLock
 
 PROFILES_DIR = Path(__file__).resolve().parents[2] / "profiles"
 
@@ -63,7 +64,7 @@ def run_size(design_path: Path, out_root: Path, units: str | None, drawings: boo
     ``drawings`` is False the three-view, the DXF files and report.html. Returns the folder."""
     d, layout, dirs = _size(design_path)
     system = units or d.units
-    with OutputFolder(out_root / d.name) as folder:
+    with FolderLock(out_root / d.name, "size"), OutputFolder(out_root / d.name) as folder:
         _write_reports(folder, layout, system)
         if drawings:
             from geomgen.outputs.html_report import write_html
@@ -97,7 +98,9 @@ def run_build(
 ) -> BuildResult:
     """Size, lay out, build the solids, export STEP and STL, check everything. Solids come
     from the cache under ``out_root/.cache`` when their inputs are unchanged, and a build
-    whose inputs are all unchanged keeps the last outputs; ``fresh`` ignores both."""
+    whose inputs are all unchanged keeps the last outputs; ``fresh`` ignores both. The
+    output folder is locked from the check for unchanged inputs to the swap of the new
+    outputs: a second run into it refuses at once."""
     t0 = time.perf_counter()
 
     def stage(text: str) -> None:
@@ -113,6 +116,12 @@ def run_build(
                 f"unknown part {unknown[0]!r}; parts of this design: {', '.join(sorted(known))}",
                 path="--only",
             )
+    with FolderLock(out_root / d.name, "build"):
+        return _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, stage)
+
+
+def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, stage):
+    """run_build past sizing, under the lock of its output folder."""
     from geomgen.store.cache import Cache, key_of
     from geomgen.store.stamp import output_time
 

@@ -26,6 +26,7 @@ from typing import Any
 import numpy as np
 
 from geomgen import __version__
+from geomgen.store.folder import cannot_write
 
 MANIFEST = "manifest.json"
 #: a temporary entry folder older than this (s) was left by a killed run (SIGKILL, power
@@ -128,9 +129,12 @@ class Cache:
         """Make an entry: ``write(folder)`` fills a temporary folder, which gets its manifest
         and is renamed into place (an entry already there is replaced)."""
         final = self.folder(key)
-        final.parent.mkdir(parents=True, exist_ok=True)
-        _remove_stale_temporaries(final.parent)
-        temp = Path(tempfile.mkdtemp(prefix=f".{key[:12]}.", dir=final.parent))
+        try:
+            final.parent.mkdir(parents=True, exist_ok=True)
+            _remove_stale_temporaries(final.parent)
+            temp = Path(tempfile.mkdtemp(prefix=f".{key[:12]}.", dir=final.parent))
+        except OSError as err:
+            raise cannot_write(err, self.root, "the build cache") from None
         try:
             write(temp)
             files = manifest_of(temp)
@@ -141,6 +145,9 @@ class Cache:
             if final.exists():
                 shutil.rmtree(final)
             os.replace(temp, final)
+        except OSError as err:  # a full disk: one line (exit 1), no half-made entry
+            shutil.rmtree(temp, ignore_errors=True)
+            raise cannot_write(err, self.root, "the build cache") from None
         except BaseException:
             shutil.rmtree(temp, ignore_errors=True)
             raise

@@ -1,16 +1,48 @@
 """Output folders written all at once: files go into a temporary folder beside the target,
 which replaces the target only when every file is written. A failure or an interrupt leaves the
-previous outputs as they were and removes the temporary folder."""
+previous outputs as they were and removes the temporary folder.
+
+A target that is not a folder, or a parent that cannot be made or written to (no permission,
+a read-only file system, a file in the way), is bad input (``InputError``, exit 2); a full disk
+or an I/O error while the outputs are written is ``OutputError`` (exit 1). Both are one line
+naming the folder and the reason, and leave no temporary folder behind."""
 
 from __future__ import annotations
 
+import errno
 import os
 import shutil
 import tempfile
 from pathlib import Path
 from types import TracebackType
 
-from geomgen.errors import InputError
+from geomgen.errors import InputError, OutputError
+
+#: errors of the machine, not of the path the user gave: exit 1 rather than 2
+NOT_THE_INPUT = frozenset({errno.ENOSPC, errno.EDQUOT, errno.EIO, errno.EFBIG, errno.ENOMEM})
+
+
+def _reason(err: OSError) -> str:
+    return err.strerror or str(err)
+
+
+def cannot_write(err: OSError, where: Path, what: str = "the output folder"):
+    """The one-line error for an OSError met while making or writing ``where``."""
+    if err.errno in NOT_THE_INPUT:
+        return OutputError(f"{where}: cannot write {what} ({_reason(err)})")
+    return InputError(f"cannot write {what} ({_reason(err)})", source=str(where))
+
+
+def prepare_parent(target: Path) -> Path:
+    """Check that ``target`` may become an output folder and make its parent; returns it."""
+    target = Path(target)
+    if target.exists() and not target.is_dir():
+        raise InputError("output path exists and is not a folder", source=str(target))
+    try:
+        target.parent.mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        raise cannot_write(err, target.parent) from None
+    return target.parent
 
 
 class OutputFolder:
@@ -21,16 +53,11 @@ class OutputFolder:
         self.temp: Path | None = None
 
     def __enter__(self) -> OutputFolder:
-        parent = self.target.parent
-        if self.target.exists() and not self.target.is_dir():
-            raise InputError("output path exists and is not a folder", source=str(self.target))
+        parent = prepare_parent(self.target)
         try:
-            parent.mkdir(parents=True, exist_ok=True)
             self.temp = Path(tempfile.mkdtemp(prefix=f".{self.target.name}.", dir=parent))
         except OSError as err:
-            raise InputError(
-                f"cannot write the output folder ({err.strerror})", source=str(parent)
-            ) from None
+            raise cannot_write(err, parent) from None
         return self
 
     def path(self, name: str) -> Path:
@@ -54,12 +81,34 @@ class OutputFolder:
         assert self.temp is not None
         if exc_type is not None:
             shutil.rmtree(self.temp, ignore_errors=True)
+            if isinstance(exc, OSError):  # a full disk, an I/O error: one line, not a traceback
+                where = f": {exc.filename}" if exc.filename else ""
+                raise OutputError(
+                    f"{self.target}: cannot write the outputs ({_reason(exc)}{where}); "
+                    "the previous outputs are left as they were"
+                ) from None
             return
+        try:
+            self._swap()
+        except OSError as err:
+            shutil.rmtree(self.temp, ignore_errors=True)
+            raise OutputError(
+                f"{self.target}: cannot put the new outputs in place ({_reason(err)})"
+            ) from None
+
+    def _swap(self) -> None:
+        """The target replaced by the temporary folder; on failure the old target is back."""
+        assert self.temp is not None
         old = None
         if self.target.exists():
             old = self.target.with_name(f".{self.target.name}.old-{os.getpid()}")
             os.replace(self.target, old)
-        os.replace(self.temp, self.target)
+        try:
+            os.replace(self.temp, self.target)
+        except OSError:
+            if old is not None:
+                os.replace(old, self.target)
+            raise
         os.chmod(self.target, 0o755)
         if old is not None:
             shutil.rmtree(old, ignore_errors=True)
