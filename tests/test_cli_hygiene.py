@@ -378,3 +378,20 @@ def test_a_full_disk_in_the_build_cache_is_one_line_and_no_half_made_entry(
         f"{tmp_path / '.cache'}: cannot write the build cache (No space left on device)"
     )
     assert [p for p in (tmp_path / ".cache").rglob("*") if p.is_file()] == []
+
+
+def test_a_sweep_into_a_locked_sweep_folder_is_refused_naming_the_holder(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    out = tmp_path / "out"
+    holder = _holder(out / f"{NAME}-sweep")
+    try:
+        code = main(["sweep", str(DEMO), "--out", str(out), "--vary", "wing.aspect_ratio=7.4,8.2"])
+        lines = capsys.readouterr().err.strip().splitlines()
+        assert code == 1, lines
+        assert len(lines) == 1 and f"(pid {holder.pid} on " in lines[0], lines
+        assert not (out / f"{NAME}-sweep").exists()  # nothing written
+    finally:
+        holder.kill()
+        holder.wait(timeout=30)
+        holder.stdout.close()

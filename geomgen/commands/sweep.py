@@ -196,30 +196,34 @@ def run_sweep(
     if folder.exists() and not folder.is_dir():
         raise InputError("output path exists and is not a folder", source=str(folder))
 
-    plan = plan_variants(document, design_path, varies, folder)
-    try:
-        if folder.exists():  # a previous sweep of this design: replaced as a whole
-            shutil.rmtree(folder)
-        for variant, doc in plan:
-            variant.design_path.parent.mkdir(parents=True, exist_ok=True)
-            variant.design_path.write_text(
-                yaml.safe_dump(doc, sort_keys=False, allow_unicode=True), encoding="utf-8"
-            )
-    except OSError as err:
-        raise InputError(
-            f"cannot write the sweep folder ({err.strerror})", source=str(folder)
-        ) from None
-    variants = [v for v, _ in plan]
-    paths = [str(v.design_path.resolve()) for v in variants]
-    if scheduler is not None:
-        rows = _run_dask(paths, build, scheduler)
-    else:
-        rows = _run_local(paths, build, jobs)
-    csv_path = folder / "summary.csv"
-    write_summary(csv_path, varies, variants, rows, build)
-    plot_path = None
-    if pairs:
-        plot_path = folder / "sweep.png"
-        write_plot(plot_path, csv_path, pairs, [v.key for v in varies])
-    failed = sum(1 for r in rows if r.get("status") != "ok")
+    from geomgen.store.lock import FolderLock
+
+    # one sweep of a design into an output folder at a time (its variants lock their own)
+    with FolderLock(folder, "sweep"):
+        plan = plan_variants(document, design_path, varies, folder)
+        try:
+            if folder.exists():  # a previous sweep of this design: replaced as a whole
+                shutil.rmtree(folder)
+            for variant, doc in plan:
+                variant.design_path.parent.mkdir(parents=True, exist_ok=True)
+                variant.design_path.write_text(
+                    yaml.safe_dump(doc, sort_keys=False, allow_unicode=True), encoding="utf-8"
+                )
+        except OSError as err:
+            raise InputError(
+                f"cannot write the sweep folder ({err.strerror})", source=str(folder)
+            ) from None
+        variants = [v for v, _ in plan]
+        paths = [str(v.design_path.resolve()) for v in variants]
+        if scheduler is not None:
+            rows = _run_dask(paths, build, scheduler)
+        else:
+            rows = _run_local(paths, build, jobs)
+        csv_path = folder / "summary.csv"
+        write_summary(csv_path, varies, variants, rows, build)
+        plot_path = None
+        if pairs:
+            plot_path = folder / "sweep.png"
+            write_plot(plot_path, csv_path, pairs, [v.key for v in varies])
+        failed = sum(1 for r in rows if r.get("status") != "ok")
     return SweepResult(folder, csv_path, plot_path, len(rows) - failed, failed)

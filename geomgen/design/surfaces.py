@@ -69,7 +69,8 @@ _PANEL = Mapping(
                 bounds=_ANGLE_SMALL,
                 optional=True,
                 description="twist at the panel's outer end relative to the root "
-                "(default: linear in span up to the surface's twist)",
+                "(default: linear in span up to the surface's twist); within the panel the "
+                "ruled law of the surface's twist applies",
             ),
         ),
         ("airfoil", Text(optional=True, description="section at the panel's outer end")),
@@ -177,7 +178,11 @@ def surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, .
                 dimension="angle",
                 bounds=_ANGLE_SMALL,
                 default="0 deg",
-                description="tip incidence minus root incidence (washout negative)",
+                description="tip incidence minus root incidence (washout negative). It holds "
+                "at the root, the panel ends and the tip; in between, a panel is a ruled "
+                "surface between its end sections, so its twist is that of their blended chord "
+                "line, weighted by chord: tan(twist) = sum(w c sin) / sum(w c cos), w the span "
+                "fractions (each template states the angle there)",
             ),
         ),
         (

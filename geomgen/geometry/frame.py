@@ -17,7 +17,9 @@ from geomgen.sizing.aircraft import SurfaceSizing
 def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndarray:
     """Place section points given in unit-chord coordinates (x/c, y/c) at spanwise position s.
 
-    The section is first turned by its local twist about its own ``twist_axis`` point, then the
+    The section is the one the ruled panel has at s (``Planform.section_frame``: its chord and
+    its chord-weighted twist; the points are that section's unit-chord shape), first turned by
+    that twist about its own ``twist_axis`` point, then the
     whole surface is turned rigidly by the incidence about a spanwise axis through the root's
     ``twist_axis`` point (so an untwisted surface stays a rigid body and straight lines on it,
     such as a common hinge, stay straight). Returns an (N, 3) array in the aircraft frame (m);
@@ -25,13 +27,16 @@ def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndar
     """
     pts = np.asarray(points, dtype=float).reshape(-1, 2)
     pf, spec = ss.planform, ss.spec
-    x_le, chord, rise, twist = pf.at(s)
+    x_le, chord_linear, rise, _ = pf.at(s)
+    # the ruled panel's section: its own chord and twist (equal to the linear ones on a panel
+    # of one twist), about the blended axis point
+    chord, twist = pf.section_frame(s)
     a = spec.twist_axis
     # twist about the section's own axis point (local frame: x aft from apex, n normal)
     u = (pts[:, 0] - a) * chord
     v = pts[:, 1] * chord
     ct, st = math.cos(twist), math.sin(twist)
-    x = x_le + a * chord + u * ct + v * st
+    x = x_le + a * chord_linear + u * ct + v * st
     n = rise - u * st + v * ct
     # incidence: rigid turn about the root's axis point (x = a c_root, n = 0), nose up positive
     x0 = a * pf.root_chord

@@ -116,11 +116,23 @@ _SURFACE_ROWS = [
     ("dihedral", lambda s, f: _deg(s.sizing.spec.dihedral)),
     ("incidence (root)", lambda s, f: _deg(s.sizing.spec.incidence)),
     ("twist (tip - root)", lambda s, f: _deg(s.sizing.spec.twist)),
+    (
+        "twist at mid-panel (ruled panel; linear in span would be)",
+        lambda s, f: "; ".join(
+            f"{_deg(s.sizing.planform.section_frame(m)[1])} ({_deg(s.sizing.planform.at(m)[3])})"
+            for m in _mid_panels(s.sizing.planform)
+        ),
+    ),
     ("apex x", lambda s, f: f(s.sizing.apex_x, "length")),
     ("apex z", lambda s, f: f(s.sizing.apex_z, "length")),
     ("mean t/c", lambda s, f: f"{s.sizing.thickness_ratio:.4f}"),
     ("wetted area (Raymer, on the reference area)", lambda s, f: f(s.sizing.wetted_area, "area")),
 ]
+
+
+def _mid_panels(pf) -> list[float]:
+    return [0.5 * (a.s + b.s) for a, b in zip(pf.stations, pf.stations[1:], strict=False)]
+
 
 _JUNCTION_ROWS = [
     ("fuselage side, spanwise station", lambda j, f: _range(j.side_min, j.side_max, f)),

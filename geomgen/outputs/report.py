@@ -28,6 +28,20 @@ SURFACE_TITLES = {
 }
 
 
+def _mid_panels(pf) -> list[float]:
+    """Spanwise position (m) of the middle of each panel."""
+    return [0.5 * (a.s + b.s) for a, b in zip(pf.stations, pf.stations[1:], strict=False)]
+
+
+#: the twist law every solid, hinge line and template follows (Planform.section_frame)
+TWIST_LAW = (
+    "stated twist at the root, each panel end and the tip; between them each panel is a ruled "
+    "surface between its end sections, so the twist there is the angle of their blended chord "
+    "line, weighted by chord (tan = sum w c sin / sum w c cos, w the span fractions), and the "
+    "chord its length"
+)
+
+
 def _q(value: float, kind: str) -> dict[str, Any]:
     return {"value": value, "unit": SI_UNITS[kind]}
 
@@ -198,6 +212,16 @@ def _surface_data(sl: SurfaceLayout) -> dict[str, Any]:
                 "section": _section_text(st.airfoil),
             }
             for st in pf.stations
+        ],
+        "twist_law": TWIST_LAW,
+        "twist_mid_panel": [
+            {
+                "span_position": _q(mid, "length"),
+                "twist": _q(pf.section_frame(mid)[1], "angle"),
+                "twist_linear_in_span": _q(pf.at(mid)[3], "angle"),
+                "chord": _q(pf.section_frame(mid)[0], "length"),
+            }
+            for mid in _mid_panels(pf)
         ],
         "corners": corners,
         "hinge_lines": hinges,

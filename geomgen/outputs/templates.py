@@ -95,7 +95,7 @@ class SectionTemplate:
     name: str  # e.g. wing-y0600, fin-h0250 (DXF layer name, page label)
     s: float  # m, spanwise position from the root (projected)
     chord: float  # m
-    angle: float  # rad, chord line to the x axis: incidence + twist (nose up / LE to starboard)
+    angle: float  # rad, chord line to the x axis: incidence + the ruled panel's twist here
     section: str  # name of the section (or blend)
     hinges: tuple[HingeMark, ...]
     spar: float | None  # chord fraction of the spar mark
@@ -271,7 +271,8 @@ def section_template(
     ss = sl.sizing
     solids = layout.sizing.design.solids
     pf = ss.planform
-    _, chord_m, _, twist = pf.at(s)
+    # the section the ruled panel has here: its chord and its (chord-weighted) twist
+    chord_m, twist = pf.section_frame(s)
     af = unit_section(ss, s, solids.section_points, solids.te_thickness, tuple(dirs))
     c = chord_m * 1000.0
     up = af.upper * c
@@ -331,7 +332,8 @@ def section_template(
     lines = [
         f"{name}: {word}, {_where(layout.surface(key), s)}, {place}",
         f"chord {c:.1f} mm; section {_section_mix(ss, s)}",
-        f"chord line at {math.degrees(angle):+.2f} deg to the x axis ({turn}); drawn 1:1 in mm",
+        f"chord line at {math.degrees(angle):+.2f} deg to the x axis ({turn}; twist of the ruled "
+        "panel); drawn 1:1 in mm",
     ]
     y = y_lo - 3.0 - TEXT
     for line in lines:

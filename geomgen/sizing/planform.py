@@ -86,7 +86,9 @@ class Planform:
         return len(self.stations) - 2
 
     def at(self, s: float) -> tuple[float, float, float, float]:
-        """(x_le, chord, rise, twist) at spanwise position s, interpolated within its panel."""
+        """(x_le, chord, rise, twist) at spanwise position s, interpolated linearly within its
+        panel (the planform's chord and twist; the section a ruled panel has there is
+        ``section_frame``)."""
         i = self.panel_index(s)
         a, b = self.stations[i], self.stations[i + 1]
         t = (s - a.s) / (b.s - a.s)
@@ -96,6 +98,32 @@ class Planform:
             a.rise + t * (b.rise - a.rise),
             a.twist + t * (b.twist - a.twist),
         )
+
+    def section_frame(self, s: float) -> tuple[float, float]:
+        """(chord, twist) of the section the ruled panel has at s: m, rad nose up.
+
+        The twist law of every solid, drawing and template: a straight-tapered panel is a
+        ruled surface between its end sections, so its section at s is the blend of the two
+        *physical* end sections, (1 - t) P_a + t P_b with t the span fraction. Its chord line
+        runs from the blended leading edge to the blended trailing edge: as a complex number
+        in the section plane, (1 - t) c_a e^(-i twist_a) + t c_b e^(-i twist_b). Its angle is
+        the twist (chord-weighted: tan twist = sum w c sin twist / sum w c cos twist) and its
+        length the chord, which falls short of the linear chord by about c (dtwist)^2 / 8.
+        A panel of one twist has the linear chord and that twist exactly.
+        """
+        i = self.panel_index(s)
+        a, b = self.stations[i], self.stations[i + 1]
+        t = (s - a.s) / (b.s - a.s)
+        if t == 0.0:
+            return a.chord, a.twist
+        if t == 1.0:
+            return b.chord, b.twist
+        if a.twist == b.twist:
+            return a.chord + t * (b.chord - a.chord), a.twist
+        z = (1 - t) * a.chord * complex(math.cos(a.twist), -math.sin(a.twist)) + t * b.chord * (
+            complex(math.cos(b.twist), -math.sin(b.twist))
+        )
+        return abs(z), -math.atan2(z.imag, z.real)
 
     def section_weight(self, s: float) -> tuple[int, float]:
         """(i, w): the section at s is (1 - w) x section of stations[i] + w x section of

@@ -56,7 +56,7 @@ def _rotate_about(v: np.ndarray, axis: np.ndarray, angle: float) -> np.ndarray:
 def _thickness_normal(sl: SurfaceLayout, s: float) -> np.ndarray:
     """Unit 'up' direction of the sections at s, turned by incidence and twist."""
     ss = sl.sizing
-    theta = ss.spec.incidence + ss.planform.at(s)[3]
+    theta = ss.spec.incidence + ss.planform.section_frame(s)[1]  # the ruled panel's twist
     if ss.planform.symmetric:
         return np.array([math.sin(theta), 0.0, math.cos(theta)])
     return np.array([math.sin(theta), math.cos(theta), 0.0])
