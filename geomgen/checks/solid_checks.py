@@ -167,6 +167,99 @@ def surface_checks(build: records.Build, dirs: tuple = ()) -> list[Check]:
     return out
 
 
+def position_checks(build: records.Build, meshes: dict, dirs: tuple = ()) -> list[Check]:
+    """Each written mesh where the layout puts it, and each hinge axis on the uncut solid's
+    mean line (mm).
+
+    Positions: a surface side's fixed part reaches from its solid root station to its tip and
+    forward to the foremost point of its placed sections; a moving part, turned back to zero
+    deflection, spans its control's stations less the side gaps; the fuselage reaches from its
+    first to its last station. Hinge axes: at both ends and the middle, the axis lies halfway
+    between the uncut solid's surfaces along the sections' thickness direction."""
+    from geomgen.geometry.body_side import station_of
+    from geomgen.geometry.sections import surface_sections
+
+    t = TOLERANCES
+    d = build.layout.sizing.design
+    points, te = d.solids.section_points, d.solids.te_thickness
+    chordal = {p.name: d.solids.tessellation * p.local_chord_min for p in build.parts}
+    out: list[Check] = []
+
+    def extent(label, part, got, want, slack=0.0):
+        out.append(_abs(label, part, got, want, t.part_position + slack, "mm"))
+
+    for sb in build.sides:
+        sl, side = sb.surface, sb.side
+        ss = sl.sizing
+        name = fixed_part_name(sl.key, side)
+        if name in meshes:
+            v = meshes[name][0]
+            s = station_of(ss, side, v / MM) * MM
+            extent("fixed part's root end vs layout station", name, s.min(), sl.mount_s * MM)
+            extent(
+                "fixed part's tip end vs layout station", name, s.max(), ss.planform.semi_span * MM
+            )
+            secs = surface_sections(sl, side, points, te, dirs).sections
+            x_min = min(min(sec.upper[:, 0].min(), sec.lower[:, 0].min()) for sec in secs) * MM
+            extent("fixed part's foremost x vs layout", name, v[:, 0].min(), x_min, chordal[name])
+        for cb in sb.controls:
+            c = cb.layout
+            spec = next(x for x in ss.spec.controls if x.kind == c.kind)
+            p0, p1 = (np.asarray(p, dtype=float) for p in cb.axis)
+            if c.name in meshes:
+                back = controls.undeflect_points(sl, p0, p1, spec.deflection, meshes[c.name][0])
+                s = station_of(ss, side, back / MM) * MM
+                gap = spec.side_gap * MM
+                extent("moving part's inner end vs layout", c.name, s.min(), c.s_start * MM + gap)
+                extent("moving part's outer end vs layout", c.name, s.max(), c.s_end * MM - gap)
+            reach = 2.0 * max(st.chord for st in ss.planform.stations) * MM
+            # the built axis against the solid; the layout's hinge line against its mean line
+            q0, q1 = (np.array(c.hinge[i].point) * MM for i in (0, -1))
+            for where, point, planned in (
+                ("inner end", p0, q0),
+                ("middle", 0.5 * (p0 + p1), 0.5 * (q0 + q1)),
+                ("outer end", p1, q1),
+            ):
+                station = float(station_of(ss, side, point[None, :] / MM)[0])
+                normal = controls._thickness_normal(sl, station)
+                hit = controls.thickness_probe(sb.whole, point, normal, reach)
+                chord = ss.planform.section_frame(station)[0] * MM
+                measured = float("inf")
+                if hit is not None:
+                    measured = float(np.dot(point - 0.5 * (hit[0] + hit[1]), normal))
+                out.append(
+                    _abs(
+                        f"hinge axis ({where}) off the uncut solid's mean line vs layout",
+                        c.name,
+                        measured,
+                        _layout_mean_line_offset(ss, side, station, planned, normal, dirs),
+                        t.hinge_mean_line * chord,
+                        "mm",
+                    )
+                )
+    body = build.layout.body
+    if body is not None and "fuselage" in meshes:
+        v = meshes["fuselage"][0]
+        slack = chordal["fuselage"]
+        extent("fuselage nose x vs first station", "fuselage", v[:, 0].min(), body[0].x * MM, slack)
+        extent("fuselage tail x vs last station", "fuselage", v[:, 0].max(), body[-1].x * MM, slack)
+    return out
+
+
+def _layout_mean_line_offset(ss, side: str, station: float, point, normal, dirs: tuple) -> float:
+    """Signed distance (mm, along ``normal``) of a hinge axis point from the layout's mean line
+    at its station: 0 at the hinge points; in between, a straight hinge that crosses chord
+    fractions on a twisted panel leaves the warped mean surface by a little (about the
+    fraction change x chord x twist change / 4), and the solid must show the same."""
+    from geomgen.geometry.frame import place
+    from geomgen.geometry.layout import mean_line_offset
+
+    le, te = place(ss, side, station, np.array([[0.0, 0.0], [1.0, 0.0]])) * MM
+    f = float(np.dot(point - le, te - le) / np.dot(te - le, te - le))
+    mean = place(ss, side, station, np.array([[f, mean_line_offset(ss, station, f, dirs)]]))[0]
+    return float(np.dot(point - mean * MM, normal))
+
+
 def junction_checks(build: records.Build, meshes: dict) -> list[Check]:
     """Checks of every surface side mounted on the fuselage, on its STL mesh (mm): the points
     of its root end lie inside the body (so a union of the parts would be closed), and no

@@ -20,6 +20,12 @@ class Tolerances:
     max_gap_fraction: float = 0.10
     #: cut-face points off the hinge plane, as a fraction of the local chord
     hinge_plane: float = 1e-6
+    #: a hinge axis point off the mean line of the uncut solid (halfway between its surfaces,
+    #: along the sections' thickness direction), as a fraction of the local chord
+    hinge_mean_line: float = 1e-4
+    #: a written mesh's extreme (spanwise ends, foremost point, body nose and tail) vs where
+    #: the layout puts it, mm, on top of the mesh's chordal tolerance for curved extremes
+    part_position: float = 0.01
     #: STEP read back vs the built solids, relative volume (read back with the fast rule)
     step_readback: float = 1e-4
     #: meshes used only for the projected-area checks are this many times coarser than the

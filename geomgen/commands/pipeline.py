@@ -176,6 +176,7 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
             part_rows.append((p.name, solid_volume, deflection))
         stage(f"wrote {len(parts)} STL files")
         results += checks.surface_checks(built, dirs)
+        results += checks.position_checks(built, meshes, dirs)
         results += checks.junction_checks(built, meshes)
         if body is not None:
             results += checks.fuselage_checks(

@@ -160,6 +160,41 @@ def _deflect(
     return shape.rotate(_vec(a), _vec(b), degrees)
 
 
+def undeflect_points(
+    sl: SurfaceLayout, p0: np.ndarray, p1: np.ndarray, angle: float, points: np.ndarray
+) -> np.ndarray:
+    """Points (N, 3, mm) of a part turned by ``_deflect`` turned back to zero deflection (the
+    same axis and sign, numpy only: for checks of exported meshes)."""
+    pts = np.asarray(points, dtype=float)
+    if angle == 0.0:
+        return pts.copy()
+    if sl.key == "vertical_tail":
+        a, b = (p0, p1) if p1[2] > p0[2] else (p1, p0)
+        turn = math.radians(-math.degrees(angle))
+    else:
+        a, b = (p0, p1) if p1[1] > p0[1] else (p1, p0)
+        turn = math.radians(math.degrees(angle))
+    k = _unit(np.asarray(b, dtype=float) - np.asarray(a, dtype=float))
+    v = pts - a
+    c, s_ = math.cos(-turn), math.sin(-turn)
+    return a + v * c + np.cross(k, v) * s_ + np.outer(v @ k, k) * (1 - c)
+
+
+def thickness_probe(
+    shape: cq.Shape, point: np.ndarray, direction: np.ndarray, reach: float
+) -> tuple[np.ndarray, np.ndarray] | None:
+    """Where the line through ``point`` (mm) along ``direction`` enters and leaves the solid:
+    the (lower, upper) surface points along the direction, or None if it misses."""
+    d = _unit(np.asarray(direction, dtype=float))
+    line = cq.Edge.makeLine(_vec(point - reach * d), _vec(point + reach * d))
+    inside = shape.intersect(line)
+    ends = [np.array(v.toTuple()) for v in inside.Vertices()]
+    if len(ends) < 2:
+        return None
+    along = [float(np.dot(e - point, d)) for e in ends]
+    return ends[int(np.argmin(along))], ends[int(np.argmax(along))]
+
+
 def build_side(sl: SurfaceLayout, side: str, points: int, te: float, dirs: tuple) -> SideBuild:
     name = fixed_part_name(sl.key, side)
     secs = surface_sections(sl, side, points, te, dirs)
