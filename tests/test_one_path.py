@@ -1,6 +1,7 @@
 """Outputs are a function of the design alone: a clean build, a build whose solids all come from
 the cache, a build resumed after the first one was killed (SIGKILL) once its solids were built,
-and a build that finds its cache entries damaged write the same bytes in every file.
+a build that finds its cache entries damaged, and a ``--fresh`` build beside a full cache write
+the same bytes in every file.
 
 Every build runs in a fresh interpreter (as a user runs it), so each is its process's first
 STEP export (OCCT numbers assembly occurrences from a per-process counter)."""
@@ -32,9 +33,9 @@ def _env() -> dict[str, str]:
     return env
 
 
-def _build(design: Path, out: Path) -> str:
+def _build(design: Path, out: Path, *extra: str) -> str:
     done = subprocess.run(
-        [sys.executable, "-c", CODE, "build", str(design), "--out", str(out)],
+        [sys.executable, "-c", CODE, "build", str(design), "--out", str(out), *extra],
         env=_env(),
         capture_output=True,
         text=True,
@@ -115,4 +116,11 @@ def test_a_build_over_a_damaged_cache_equals_a_clean_build(design, clean, tmp_pa
         p.write_bytes(data[: len(data) // 2])
     stdout = _build(design, tmp_path)
     assert "reused 6 solid(s)" not in stdout  # the damaged entries were built again
+    assert_same_files(clean, tmp_path / NAME)
+
+
+def test_a_fresh_build_beside_a_full_cache_equals_a_clean_build(design, clean, tmp_path) -> None:
+    _build(design, tmp_path)
+    stdout = _build(design, tmp_path, "--fresh")  # ignores the cache and the kept outputs
+    assert "reused" not in stdout and "unchanged" not in stdout
     assert_same_files(clean, tmp_path / NAME)
