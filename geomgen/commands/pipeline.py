@@ -82,6 +82,9 @@ class BuildResult:
     reused: tuple[str, ...] = ()  # solids taken from the cache (fixed part names, fuselage)
     rebuilt: tuple[str, ...] = ()  # solids built anew
     unchanged: bool = False  # nothing changed: every output of the last build was kept
+    #: units (surface sides by their fixed part, fuselage) whose STL files, meshes and checks
+    #: came from the cache
+    outputs_reused: tuple[str, ...] = ()
 
 
 #: the stamp a build leaves in its folder: the key of its inputs and its files' hashes
@@ -138,7 +141,7 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
         stage("nothing changed since the last build: every output kept")
         return _kept_result(target)
     from geomgen.checks import solid_checks as checks
-    from geomgen.solids import assembly, kernel, meshing, step
+    from geomgen.solids import assembly, kernel, step
 
     store = Cache(out_root / ".cache", enabled=not fresh)
     built = assembly.build(layout, dirs, only, store)
@@ -162,26 +165,48 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
 
         step.write_step(parts, step_path, d.name, when=output_time(d))
         stage(f"wrote {step_path.name}")
-        meshes = {}
-        for p in parts:
-            deflection = d.solids.tessellation * p.local_chord_min
-            stl = folder.path(f"stl/{p.name}.stl")
-            if p is body:  # pointed ends: the writer drops the tips' zero-area triangles
-                meshing.write_body_stl(p.shape, stl, deflection)
-            else:
-                meshing.write_stl(p.shape, stl, deflection)
-            solid_volume = kernel.volume(p.shape)
-            part_checks, meshes[p.name] = checks.stl_checks(p.name, stl, solid_volume)
-            results += part_checks
-            part_rows.append((p.name, solid_volume, deflection))
-        stage(f"wrote {len(parts)} STL files")
-        results += checks.surface_checks(built, dirs)
-        results += checks.position_checks(built, meshes, dirs)
-        results += checks.junction_checks(built, meshes)
+        # per unit (a surface side, the fuselage): STL files, meshes and checks, cached
+        from geomgen.commands.part_outputs import unit_outputs
+
+        units_store = Cache(out_root / ".cache", enabled=not fresh)  # its own hit list
+        stl_dir = folder.path("stl/x").parent
+        units = [
+            (sb, [p for p in parts if p.surface == sb.surface.key and p.side == sb.side])
+            for sb in built.sides
+        ]
         if body is not None:
-            results += checks.fuselage_checks(
-                body.shape, layout.body, d.solids.tessellation * body.local_chord_min
+            units.append((None, [body]))
+        made, reused = [], []
+        for sb, unit_parts in units:
+            if sb is None:
+                solid_key = key_of("fuselage", layout.body)
+            else:
+                solid_key = assembly.side_key(sb.surface, sb.side, layout, dirs)
+            out, hit = unit_outputs(built, sb, unit_parts, stl_dir, dirs, units_store, solid_key)
+            made.append(out)
+            if hit:
+                reused.append(unit_parts[0].name)
+        meshes = {n: m for out in made for n, m in out.meshes.items()}
+        for p in parts:
+            part_rows.append(
+                (p.name, kernel.volume(p.shape), d.solids.tessellation * p.local_chord_min)
             )
+        stage(
+            f"wrote {len(parts)} STL files"
+            + (
+                f" ({len(reused)} unit(s) with their checks from the cache: {', '.join(reused)})"
+                if reused
+                else ""
+            )
+        )
+        # the checks in the order of a clean build: the meshes, each side against the
+        # sizing, every part's position, then the checks between parts
+        for what in ("stl_checks", "surface_checks", "position_checks"):
+            for out in made:
+                results += getattr(out, what)
+        results += checks.junction_checks(built, meshes)
+        for out in made:
+            results += out.body_checks
         results += checks.step_checks(step.read_step(step_path), parts)
         stage(f"ran {len(results)} checks")
         failed = tuple(f"{c.part}: {c.name}" for c in results if not c.passed)
@@ -219,6 +244,7 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
         len(results),
         tuple(store.hits),
         tuple(store.misses),
+        outputs_reused=tuple(reused),
     )
 
 

@@ -1,0 +1,132 @@
+"""What a build makes from each solid, cached per unit: a surface side (its fixed part and its
+moving parts) or the fuselage. A unit's outputs are its parts' STL files and meshes, their mesh
+checks, the side's surface and position checks (the fuselage's position and body checks).
+
+A unit's cache key holds the key of its solids (so everything they were made from), its part
+names and STL tolerances, the tolerances of the checks and a digest of geomgen's own source
+code: a changed input, limit or check rule misses the cache, so a cached check can never stand
+in for one that would now fail. A hit copies the unit's STL files and reads its checks and
+meshes back; a miss makes them in the order a clean build does (STL files, then the checks, on
+shapes just read back from their BREP files), so cached and clean builds write the same bytes.
+Checks between units (junctions, the STEP read-back) are never cached.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import shutil
+from dataclasses import dataclass, replace
+from functools import lru_cache
+from pathlib import Path
+
+import numpy as np
+
+PACKAGE = Path(__file__).resolve().parents[1]
+
+
+@lru_cache(maxsize=1)
+def source_digest() -> str:
+    """sha256 of every Python file of the geomgen package (names and contents)."""
+    h = hashlib.sha256()
+    for p in sorted(PACKAGE.rglob("*.py")):
+        h.update(p.relative_to(PACKAGE).as_posix().encode("utf-8") + b"\0")
+        h.update(p.read_bytes() + b"\0")
+    return h.hexdigest()
+
+
+@dataclass
+class UnitOutputs:
+    """One unit's results, in the order a clean build makes them."""
+
+    stl_checks: list  # of Check, part by part
+    meshes: dict  # part name -> (vertices, faces) mm
+    surface_checks: list  # a side's surface checks (none for the fuselage)
+    position_checks: list
+    body_checks: list  # the fuselage's checks (none for a side)
+
+    LISTS = ("stl_checks", "surface_checks", "position_checks", "body_checks")
+
+
+def _save(folder: Path, names: list[str], out: UnitOutputs, stl_dir: Path) -> None:
+    for n in names:
+        shutil.copyfile(stl_dir / f"{n}.stl", folder / f"{n}.stl")
+        v, f = out.meshes[n]
+        np.save(folder / f"{n}.vertices.npy", v, allow_pickle=False)
+        np.save(folder / f"{n}.faces.npy", f, allow_pickle=False)
+    data = {k: [c.as_dict() for c in getattr(out, k)] for k in UnitOutputs.LISTS}
+    (folder / "checks.json").write_text(json.dumps(data), encoding="utf-8")
+
+
+def _load(folder: Path, names: list[str], stl_dir: Path) -> UnitOutputs:
+    from geomgen.checks.common import Check
+
+    data = json.loads((folder / "checks.json").read_text(encoding="utf-8"))
+    meshes = {}
+    for n in names:
+        shutil.copyfile(folder / f"{n}.stl", stl_dir / f"{n}.stl")
+        meshes[n] = (
+            np.load(folder / f"{n}.vertices.npy", allow_pickle=False),
+            np.load(folder / f"{n}.faces.npy", allow_pickle=False),
+        )
+    lists = {k: [Check(**c) for c in data[k]] for k in UnitOutputs.LISTS}
+    return UnitOutputs(meshes=meshes, **lists)
+
+
+def unit_key(solid_key: str, parts, tessellation: float) -> str:
+    from geomgen.checks.tolerances import TOLERANCES
+    from geomgen.store.cache import key_of
+
+    return key_of(
+        "unit outputs",
+        solid_key,
+        [(p.name, p.local_chord_min, tessellation) for p in parts],
+        TOLERANCES,
+        source_digest(),
+    )
+
+
+def make_unit(build, unit, parts, stl_dir: Path, dirs: tuple) -> UnitOutputs:
+    """Write the unit's STL files and run its checks (``unit``: a SideBuild, or None for
+    the fuselage)."""
+    from geomgen.checks import solid_checks as checks
+    from geomgen.solids import kernel, meshing
+
+    d = build.layout.sizing.design
+    stl_checks: list = []
+    meshes = {}
+    for p in parts:
+        deflection = d.solids.tessellation * p.local_chord_min
+        stl = stl_dir / f"{p.name}.stl"
+        if unit is None:  # pointed ends: the writer drops the tips' zero-area triangles
+            meshing.write_body_stl(p.shape, stl, deflection)
+        else:
+            meshing.write_stl(p.shape, stl, deflection)
+        part_checks, meshes[p.name] = checks.stl_checks(p.name, stl, kernel.volume(p.shape))
+        stl_checks += part_checks
+    if unit is not None:
+        alone = replace(build, sides=(unit,))
+        surface = checks.surface_checks(alone, dirs)
+        return UnitOutputs(
+            stl_checks, meshes, surface, checks.position_checks(alone, meshes, dirs), []
+        )
+    body = parts[0]
+    position = checks.position_checks(replace(build, sides=()), meshes, dirs)
+    body_checks = checks.fuselage_checks(
+        body.shape, build.layout.body, d.solids.tessellation * body.local_chord_min
+    )
+    return UnitOutputs(stl_checks, meshes, [], position, body_checks)
+
+
+def unit_outputs(build, unit, parts, stl_dir: Path, dirs: tuple, store, solid_key: str):
+    """The unit's outputs from the cache when its key matches, else made (and cached)."""
+    if store is None or not solid_key:
+        return make_unit(build, unit, parts, stl_dir, dirs), False
+    names = [p.name for p in parts]
+    key = unit_key(solid_key, parts, build.layout.sizing.design.solids.tessellation)
+    entry = store.get(key, f"outputs of {names[0]}")
+    if entry is not None:
+        return _load(entry, names, stl_dir), True
+    out = make_unit(build, unit, parts, stl_dir, dirs)
+    store.put(key, lambda folder: _save(folder, names, out, stl_dir))
+    return out, False
