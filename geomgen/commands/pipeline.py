@@ -207,7 +207,11 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
         results += checks.junction_checks(built, meshes)
         for out in made:
             results += out.body_checks
-        results += checks.step_checks(step.read_step(step_path), parts)
+        from geomgen.checks.tolerances import TOLERANCES
+
+        expected = {p.name: kernel.volume(p.shape) for p in parts}
+        read_back = step.read_step(step_path, expected, TOLERANCES.step_readback)
+        results += checks.step_checks(read_back, parts)
         stage(f"ran {len(results)} checks")
         failed = tuple(f"{c.part}: {c.name}" for c in results if not c.passed)
         if failed:
