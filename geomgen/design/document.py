@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-from geomgen.design.fields import Mapping, Quantity, Text, between
+from geomgen.design.fields import Date, Mapping, Quantity, Text, between
 from geomgen.design.fuselage import FUSELAGE, FuselageSpec, fuselage_spec
 from geomgen.design.printed_model import MODEL, ModelSpec, model_spec
 from geomgen.design.requirements import REQUIREMENTS, Requirements, requirements_spec
@@ -32,12 +32,7 @@ DESIGN = Mapping(
         ("title", Text(optional=True, description="longer title for reports")),
         (
             "date",
-            Text(
-                optional=True,
-                pattern=r"^\d{4}-\d{2}-\d{2}$",
-                pattern_words="a date written YYYY-MM-DD",
-                description="design date YYYY-MM-DD, printed on reports",
-            ),
+            Date(optional=True, description="design date YYYY-MM-DD, printed on reports"),
         ),
         (
             "units",
