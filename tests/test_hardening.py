@@ -286,3 +286,212 @@ def test_the_number_field_takes_an_int_beyond_every_float_as_out_of_range() -> N
             field.parse(value, "wing.aspect_ratio")
     with pytest.raises(FieldError, match="a whole number of about 5000 digits"):
         field.parse(10**4999 * 9, "wing.aspect_ratio")
+
+
+# --- output folders -----------------------------------------------------------------------------
+
+NAME = "veyra-t2"
+
+
+def _size_ok(out: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    code = main(["size", str(DEMO), "--no-drawings", "--out", str(out)])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    assert captured.err == ""
+
+
+def _hidden(folder: Path) -> list[str]:
+    return sorted(p.name for p in folder.iterdir() if p.name.startswith("."))
+
+
+def test_a_cache_that_is_a_file_is_refused_before_any_work(tmp_path, capsys) -> None:
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / ".cache").write_text("not a folder\n", encoding="utf-8")
+    (out / "veyra-t2-unrelated").mkdir()
+    before = sorted(out.rglob("*"))
+    code = main(["build", str(DEMO), "--out", str(out)])
+    captured = capsys.readouterr()
+    assert code == 2, captured.err
+    assert captured.out == ""  # refused before sizing: not even the first progress line
+    lines = captured.err.splitlines()
+    assert len(lines) == 1, captured.err
+    assert lines[0].startswith(f"geomgen: error: {out / '.cache'}: the build cache is in the way")
+    assert sorted(out.rglob("*")) == before
+
+
+def test_a_cache_that_is_a_link_to_nothing_is_refused(tmp_path, capsys) -> None:
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / ".cache").symlink_to(tmp_path / "nowhere")
+    assert main(["build", str(DEMO), "--out", str(out)]) == 2
+    assert "the build cache is in the way" in capsys.readouterr().err
+
+
+def test_stale_temporary_folders_are_swept_by_the_next_run(tmp_path, capsys) -> None:
+    """Folders a killed run left beside the target (its temporary output, an old copy) are
+    removed by the next run into it, which holds the lock; those of other names are kept."""
+    out = tmp_path / "out"
+    out.mkdir()
+    stale = [out / f".{NAME}.k1ll3d_x", out / f".{NAME}.old-4242", out / f".{NAME}.0000abcd"]
+    for folder in stale:
+        (folder / "stl").mkdir(parents=True)
+        (folder / "stl" / "wing-right.stl").write_text("solid x\n", encoding="utf-8")
+    (stale[1] / "stl").chmod(0o500)  # a read-only old copy goes too
+    kept = [
+        out / f".{NAME}.b.k1ll3d_x",  # design "veyra-t2.b"'s: not ours to judge
+        out / f".{NAME}.notes",  # not a name OutputFolder makes
+        out / f".{NAME}-model.k1ll3d_x",  # the printed model's
+        out / ".cache",
+    ]
+    for folder in kept:
+        folder.mkdir()
+    _size_ok(out, capsys)
+    assert _hidden(out) == sorted(p.name for p in kept)
+    assert (out / NAME / "report.json").is_file()
+
+
+def test_a_run_that_finds_the_folder_locked_sweeps_nothing(tmp_path, capsys) -> None:
+    from geomgen.store.lock import FolderLock
+
+    out = tmp_path / "out"
+    busy = out / f".{NAME}.r4nn1ng_"
+    with FolderLock(out / NAME, "build"):
+        busy.mkdir()  # the holder's temporary folder, made once it holds the lock
+        assert main(["size", str(DEMO), "--no-drawings", "--out", str(out)]) == 1
+        assert busy.is_dir()  # the holder's own temporary folder
+    assert "is being written by another geomgen run" in capsys.readouterr().err
+
+
+def test_an_output_folder_that_is_a_link_is_written_through(tmp_path, capsys) -> None:
+    out = tmp_path / "out"
+    out.mkdir()
+    real = tmp_path / "elsewhere" / "outputs"
+    real.mkdir(parents=True)
+    (out / NAME).symlink_to(real, target_is_directory=True)
+    for _ in range(2):  # a first run into the empty folder, a second replacing its outputs
+        _size_ok(out, capsys)
+        assert (out / NAME).is_symlink()
+        assert (out / NAME).resolve() == real
+        assert (real / "report.json").is_file()
+        assert sorted(p.name for p in out.iterdir()) == [NAME]
+        assert sorted(p.name for p in real.parent.iterdir()) == ["outputs"]
+
+
+def test_an_output_folder_that_is_a_link_to_nothing_is_refused(tmp_path, capsys) -> None:
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / NAME).symlink_to(tmp_path / "gone")
+    code = main(["size", str(DEMO), "--no-drawings", "--out", str(out)])
+    lines = capsys.readouterr().err.splitlines()
+    assert code == 2
+    assert len(lines) == 1
+    assert lines[0].startswith(f"geomgen: error: {out / NAME}: output folder is a symbolic link")
+    assert sorted(p.name for p in out.iterdir()) == [NAME]
+    assert not (tmp_path / "gone").exists()
+
+
+def test_a_read_only_old_output_folder_leaves_no_old_copy(tmp_path, capsys) -> None:
+    out = tmp_path / "out"
+    _size_ok(out, capsys)
+    (out / NAME / "dxf").mkdir()
+    (out / NAME / "dxf" / "kept.dxf").write_text("0\nEOF\n", encoding="utf-8")
+    (out / NAME / "dxf").chmod(0o500)
+    (out / NAME).chmod(0o500)
+    _size_ok(out, capsys)
+    assert sorted(p.name for p in out.iterdir()) == [NAME]
+    assert not (out / NAME / "dxf").exists()
+
+
+def test_remove_tree_removes_folders_made_unreadable_and_read_only(tmp_path) -> None:
+    from geomgen.store.folder import remove_tree
+
+    root = tmp_path / "old"
+    (root / "a" / "b").mkdir(parents=True)
+    (root / "a" / "b" / "f.txt").write_text("x", encoding="utf-8")
+    (root / "link").symlink_to(tmp_path / "outside", target_is_directory=True)
+    (tmp_path / "outside").mkdir()
+    (tmp_path / "outside" / "keep.txt").write_text("x", encoding="utf-8")
+    (root / "a" / "b").chmod(0o000)
+    (root / "a").chmod(0o500)
+    root.chmod(0o500)
+    remove_tree(root)
+    assert not root.exists()
+    assert (tmp_path / "outside" / "keep.txt").is_file()  # links are not followed
+
+
+def test_refused_runs_leave_no_empty_folders(tmp_path, capsys) -> None:
+    """A refusal after the output folder is locked (the model's piece count, a sweep's plot
+    option) removes the folders the run made on the way; one that was there stays."""
+    from designs import demo_document
+
+    deep = tmp_path / "new" / "deeper" / "out"
+    doc = demo_document()
+    doc["model"].update(build_volume=["60 mm"] * 3, scale="1:1")
+    path = tmp_path / "model.yaml"
+    import yaml
+
+    path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
+    assert main(["model", str(path), "--out", str(deep)]) == 2
+    assert "at most" in capsys.readouterr().err
+    assert sorted(tmp_path.iterdir()) == [path]
+    there = tmp_path / "there"
+    there.mkdir()
+    assert main(["model", str(path), "--out", str(there)]) == 2
+    capsys.readouterr()
+    assert there.is_dir() and not any(there.iterdir())
+
+
+def test_a_design_name_may_not_end_as_the_files_beside_the_outputs(tmp_path, capsys) -> None:
+    for name in ("a.failed-checks.json", "veyra-t2.FAILED-CHECKS.JSON", "a-model", "a-Sweep"):
+        _, line = refuse(edit(f"name: {NAME}", f"name: {name}"), tmp_path, capsys)
+        assert ": name: must be letters, digits" in line, line
+        assert "not ending in '-model', '-sweep' or '.failed-checks.json'" in line, line
+    for name in ("a.failed-checks", "a-models", "model-a", "sweep", "a.json"):
+        assert design.loads(edit(f"name: {NAME}", f"name: {name}")).name == name
+
+
+# --- a closed pipe or a closed stderr -------------------------------------------------------------
+
+
+class _ClosedPipe:
+    """A standard output whose reader has gone: every write is a broken pipe."""
+
+    def write(self, text: str) -> int:
+        raise BrokenPipeError(32, "Broken pipe")
+
+    def flush(self) -> None:
+        raise BrokenPipeError(32, "Broken pipe")
+
+
+def test_build_progress_into_a_closed_pipe_ends_quietly_with_141(tmp_path, monkeypatch) -> None:
+    """The first progress line (after sizing, before any solid) meets the closed pipe: the
+    build stops there, exit 141, nothing written and nothing on stderr."""
+    import io
+
+    err = io.StringIO()
+    monkeypatch.setattr("sys.stdout", _ClosedPipe())
+    monkeypatch.setattr("sys.stderr", err)
+    out = tmp_path / "out"
+    assert main(["build", str(DEMO), "--out", str(out)]) == 141
+    assert err.getvalue() == ""
+    assert not out.exists()
+
+
+def test_sweep_into_a_closed_pipe_ends_quietly_with_141(tmp_path, monkeypatch) -> None:
+    import io
+
+    err = io.StringIO()
+    monkeypatch.setattr("sys.stdout", _ClosedPipe())
+    monkeypatch.setattr("sys.stderr", err)
+    args = ["sweep", str(DEMO), "--vary", "wing.aspect_ratio=7.5,8", "--out", str(tmp_path)]
+    assert main(args) == 141
+    assert "Traceback" not in err.getvalue()
+    assert (tmp_path / f"{NAME}-sweep" / "summary.csv").is_file()
+
+
+def test_an_error_into_a_closed_stderr_keeps_its_exit_code(tmp_path, monkeypatch) -> None:
+    monkeypatch.setattr("sys.stderr", _ClosedPipe())
+    path = tmp_path / "odd.yaml"
+    path.write_text(edit(RATIO, "aspect_ratio: 0x1F"), encoding="utf-8")
+    assert main(["size", str(path), "--out", str(tmp_path / "out")]) == 2

@@ -17,6 +17,16 @@ from geomgen.design.requirements import REQUIREMENTS, Requirements, requirements
 from geomgen.design.settings import DRAWINGS, SOLIDS, DrawingsSpec, SolidsSpec
 from geomgen.design.surfaces import SurfaceSpec, surface, surface_spec
 
+#: a design's name: the name of its output folder. Names ending in what geomgen adds to a name
+#: for the files beside the outputs (``NAME-model/``, ``NAME-sweep/``,
+#: ``NAME.failed-checks.json``) are refused: design ``a-model`` would share the folder of the
+#: printed model of design ``a``. (ASCII only, any case: also on a case-blind file system.)
+NAME_PATTERN = (
+    r"^(?!.*(?:-[mM][oO][dD][eE][lL]|-[sS][wW][eE][eE][pP]"
+    r"|\.[fF][aA][iI][lL][eE][dD]-[cC][hH][eE][cC][kK][sS]\.[jJ][sS][oO][nN])$)"
+    r"[A-Za-z0-9][A-Za-z0-9._-]*$"
+)
+
 DESIGN = Mapping(
     description="one airplane for geomgen",
     fields=(
@@ -24,8 +34,10 @@ DESIGN = Mapping(
             "name",
             Text(
                 max_length=60,
-                pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]*$",
-                pattern_words="letters, digits, '.', '_' or '-', starting with a letter or digit",
+                pattern=NAME_PATTERN,
+                pattern_words="letters, digits, '.', '_' or '-', starting with a letter or "
+                "digit, not ending in '-model', '-sweep' or '.failed-checks.json' (the names "
+                "of the folders and files geomgen writes beside a design's outputs)",
                 description="short name; used as the output folder name",
             ),
         ),
