@@ -495,3 +495,82 @@ def test_an_error_into_a_closed_stderr_keeps_its_exit_code(tmp_path, monkeypatch
     path = tmp_path / "odd.yaml"
     path.write_text(edit(RATIO, "aspect_ratio: 0x1F"), encoding="utf-8")
     assert main(["size", str(path), "--out", str(tmp_path / "out")]) == 2
+
+
+# --- section files whose coordinates would overflow ----------------------------------------------
+
+#: a made-up closed section in chord units: upper surface TE -> LE, lower LE -> TE
+_SECTION = [(1 - i / 20, 0.06 * (1 - i / 20) * (i / 20) ** 0.5 * 2) for i in range(21)] + [
+    (i / 20, -0.04 * (1 - i / 20) * (i / 20) ** 0.5 * 2) for i in range(1, 21)
+]
+
+
+def _section_design(tmp_path: Path, scale: float) -> Path:
+    (tmp_path / "scaled.dat").write_text(
+        "scaled section\n" + "".join(f"{x * scale:.9e} {y * scale:.9e}\n" for x, y in _SECTION),
+        encoding="utf-8",
+    )
+    return edit("root_airfoil: naca2415", "root_airfoil: scaled.dat")
+
+
+@pytest.mark.parametrize("scale", [1.7e308, 1e300, 1e200, 1e155, -1e100, 1e13])
+def test_coordinates_that_would_overflow_are_refused_in_one_line(
+    scale: float, tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    """One line (no numpy RuntimeWarning before it) naming the section key and saying the
+    coordinates would overflow."""
+    _, line = refuse(_section_design(tmp_path, scale), tmp_path, capsys)
+    assert ": wing.root_airfoil: line 2: a coordinate beyond 1e+12 would overflow" in line, line
+    assert "scaled.dat" in line
+
+
+def test_a_section_in_large_units_is_read_without_numerical_warnings(tmp_path) -> None:
+    import warnings
+
+    from geomgen.shapes.coordinates import read_coordinates
+
+    _section_design(tmp_path, 1e11)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        section = read_coordinates(tmp_path / "scaled.dat")
+    assert section.upper[:, 0].max() == pytest.approx(1.0, abs=1e-9)
+
+
+# --- wording --------------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "key", "words"),
+    [
+        ("area: from_stall", 'area: "12 m"', "wing.area", "must be an area, e.g."),
+        ('dihedral: "2.5 deg"', 'dihedral: "2.5 m"', "wing.dihedral", "must be an angle"),
+        ("hinge_at: [0.75, 0.72]", "hinge_at: [0.75]", "wing.controls.aileron.hinge_at", ""),
+        (
+            '    - {span_fraction: 1.0, chord_ratio: 0.62, sweep: "0 deg", sweep_at: 0.25}',
+            "    - 5",
+            "wing.panels[1]",
+            "must be a mapping of keys (got int)",
+        ),
+    ],
+    ids=["area", "angle", "one-of-two-items", "panel-not-a-mapping"],
+)
+def test_messages_read_well(old, new, key, words, tmp_path, capsys) -> None:
+    _, line = refuse(edit(old, new), tmp_path, capsys)
+    assert f": {key}: " in line, line
+    assert words in line, line
+    assert "must be a a" not in line
+    assert f"{key}: {key}" not in line
+    assert "2 to 2 items" not in line
+
+
+def test_a_list_of_fixed_length_says_exactly() -> None:
+    from geomgen.design.fields import FieldError, ListOf, Number
+
+    pair = ListOf(item=Number(), min_items=2, max_items=2)
+    with pytest.raises(FieldError, match=r"must have exactly 2 items \(got 1\)"):
+        pair.parse([1.0], "k")
+    one = ListOf(item=Number(), min_items=1, max_items=1)
+    with pytest.raises(FieldError, match=r"must have exactly 1 item \(got 3\)"):
+        one.parse([1.0, 2.0, 3.0], "k")
+    with pytest.raises(FieldError, match=r"must have 1 to 3 items \(got 0\)"):
+        ListOf(item=Number(), min_items=1, max_items=3).parse([], "k")
