@@ -158,6 +158,13 @@ class _StdoutFailed(Exception):
     """Standard output cannot be written (a full disk, ``> /dev/full``); args[0] the OSError."""
 
 
+def _tell(line: str) -> None:
+    """One line on standard error; a closed or full stderr (``2>&1 | head -1``) loses the line,
+    never the exit code."""
+    with contextlib.suppress(OSError, ValueError):
+        print(line, file=sys.stderr, flush=True)
+
+
 def _say(*args, **kwargs) -> None:
     """print() to standard output, its failures told apart from those of the commands."""
     try:
@@ -302,10 +309,10 @@ def _run(args: argparse.Namespace) -> int:
             )
             return 0
     except GeomgenError as err:
-        print(f"geomgen: error: {err}", file=sys.stderr)
+        _tell(f"geomgen: error: {err}")
         return err.exit_code
     except KeyboardInterrupt:
-        print("geomgen: interrupted; previous outputs left as they were", file=sys.stderr)
+        _tell("geomgen: interrupted; previous outputs left as they were")
         return 130
     raise AssertionError(f"unknown command {args.command!r}")  # argparse prevents this
 

@@ -18,6 +18,7 @@ InputError naming a key (or a GeometryError naming a part), never another except
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 import pytest
 from designs import TAIL_CONE, bodyless_document, trapezoid_document
@@ -238,3 +239,116 @@ def test_random_tails_build_with_every_check_passing(doc: dict, surface: str) ->
     assert results
     failed = [f"{c.part}: {c.name}" for c in results if not c.passed]
     assert not failed, failed
+
+
+# --- odd YAML text: tags, keys, dates and big numbers are refused in one line, or taken ---------
+
+ODD = settings(max_examples=60, deadline=None, database=None, derandomize=True)
+
+_DEMO_TEXT = (Path(__file__).resolve().parent.parent / "examples" / "veyra-t2.yaml").read_text(
+    encoding="utf-8"
+)
+_RATIO = "aspect_ratio: 7.8"
+_DATE = 'date: "2026-12-01"'
+
+#: tags that are never plain YAML, and plain tags whose value may or may not fit them
+_FOREIGN_TAGS = ["!!set", "!!binary", "!!timestamp", "!!omap", "!!pairs", "!local", "!!python/int"]
+_PLAIN_TAGS = ["!!float", "!!int", "!!bool", "!!null", "!!str"]
+
+
+def _refused_cleanly(text: str, key: str | None) -> design.Design | None:
+    """The design of ``text``, or None after a refusal: one line, naming ``key`` if given."""
+    try:
+        return design.loads(text, source="odd.yaml")
+    except InputError as err:
+        message = str(err)
+        assert "\n" not in message
+        assert message.startswith("odd.yaml: ")
+        if key is not None:
+            assert message.startswith(f"odd.yaml: {key}: "), message
+        return None
+
+
+@ODD
+@given(
+    tag=st.sampled_from(_FOREIGN_TAGS + _PLAIN_TAGS),
+    value=st.one_of(
+        st.sampled_from(["abc", "maybe", "7.8", "8", "0x1F", "1:30", "2026-02-30", "~", "''"]),
+        st.floats(allow_nan=False).map(repr),
+        st.text(alphabet="0123456789abcdefx.:_-+", min_size=1, max_size=12),
+    ),
+)
+def test_tagged_values_are_refused_in_one_line_or_taken(tag: str, value: str) -> None:
+    text = _DEMO_TEXT.replace(_RATIO, f"aspect_ratio: {tag} {value}", 1)
+    d = _refused_cleanly(text, "wing.aspect_ratio")
+    if tag in _FOREIGN_TAGS:
+        assert d is None
+    if d is not None:
+        assert tag == "!!float" or tag == "!!int"
+        assert d.wing.aspect_ratio == float(value)
+
+
+@st.composite
+def _odd_keys(draw: st.DrawFn) -> str:
+    """A key that is a mapping, a list, a merge key or a tagged scalar, in flow or block."""
+    inner = draw(st.sampled_from(["{a: 1}", "[1, 2]", "{}", "[]", "[[x]]", "{? [1] : 2}"]))
+    return draw(
+        st.sampled_from([f"? {inner}\n: 1", f"{inner}: 1", "<<: {cl_max: 1.7}", "!!set {a}: 1"])
+    )
+
+
+@ODD
+@given(key=_odd_keys(), where=st.sampled_from(["", "requirements", "wing", "wing.apex"]))
+def test_odd_keys_are_refused_in_one_line(key: str, where: str) -> None:
+    if where == "":
+        text, path = _DEMO_TEXT + key + "\n", None
+    elif where == "wing.apex":
+        flow = key.replace("\n", " ").replace("? ", "? ")
+        text = _DEMO_TEXT.replace('apex: {x: "1.55 m",', "apex: {" + flow + ', x: "1.55 m",', 1)
+        path = where
+    else:
+        indented = "\n".join(f"  {line}" for line in key.splitlines())
+        text = _DEMO_TEXT.replace(f"\n{where}:\n", f"\n{where}:\n{indented}\n", 1)
+        path = where
+    assert _refused_cleanly(text, path) is None
+
+
+@ODD
+@given(
+    year=st.integers(0, 9999),
+    month=st.integers(0, 19),
+    day=st.integers(0, 39),
+    quoted=st.booleans(),
+)
+def test_dates_are_days_of_the_calendar_or_refused(
+    year: int, month: int, day: int, quoted: bool
+) -> None:
+    import datetime
+
+    written = f"{year:04d}-{month:02d}-{day:02d}"
+    q = '"' if quoted else ""
+    d = _refused_cleanly(_DEMO_TEXT.replace(_DATE, f"date: {q}{written}{q}", 1), "date")
+    try:
+        datetime.date(year, month, day)
+        real = True
+    except ValueError:
+        real = False
+    assert (d is not None) == real, written
+    if d is not None:
+        assert d.date == written
+
+
+@ODD
+@given(
+    digits=st.integers(1, 6000),
+    sign=st.sampled_from(["", "-", "+"]),
+    suffix=st.sampled_from(["", ".0", ".5e3", "e-2", "e400"]),
+)
+def test_big_numbers_are_refused_in_one_line(digits: int, sign: str, suffix: str) -> None:
+    written = sign + "9" * digits + suffix
+    d = _refused_cleanly(
+        _DEMO_TEXT.replace(_RATIO, f"aspect_ratio: {written}", 1), "wing.aspect_ratio"
+    )
+    if d is not None:
+        assert 0.1 <= d.wing.aspect_ratio <= 40
+        assert float(written) == d.wing.aspect_ratio

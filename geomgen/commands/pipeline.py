@@ -109,6 +109,7 @@ def run_build(
     def stage(text: str) -> None:
         progress(f"[{time.perf_counter() - t0:6.1f} s] {text}")
 
+    _check_cache_folder(out_root)
     d, layout, dirs = _size(design_path)
     stage("sized and laid out")
     if only is not None:
@@ -250,6 +251,18 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
         tuple(store.misses),
         outputs_reused=tuple(reused),
     )
+
+
+def _check_cache_folder(out_root: Path) -> None:
+    """The build cache ``out_root/.cache`` must be a folder (or not be there yet): refused
+    before any work, not once the solids are built."""
+    cache = out_root / ".cache"
+    if (cache.exists() or cache.is_symlink()) and not cache.is_dir():
+        raise InputError(
+            "the build cache is in the way: it exists and is not a folder; remove it or use "
+            "another --out",
+            source=str(cache),
+        )
 
 
 def _section_data(layout, dirs: tuple) -> list:

@@ -184,7 +184,7 @@ def run_sweep(
 
     design_path = Path(design_path)
     base = design_module.load(design_path)  # the design must be valid on its own
-    document = yaml.safe_load(design_path.read_text(encoding="utf-8"))
+    document = design_module.read_document(design_path)  # read as load() read it
     source = str(design_path)
     varies = parse_varies(vary, document, source)
     if scheduler is None and jobs < 1:

@@ -35,6 +35,7 @@ from geomgen.design.loader import (
     from_mapping,
     load,
     loads,
+    read_document,
 )
 from geomgen.design.printed_model import ModelSpec, default_model
 from geomgen.design.requirements import Requirements
@@ -64,4 +65,5 @@ __all__ = [
     "json_schema",
     "load",
     "loads",
+    "read_document",
 ]

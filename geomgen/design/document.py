@@ -10,12 +10,22 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-from geomgen.design.fields import Mapping, Quantity, Text, between
+from geomgen.design.fields import Date, Mapping, Quantity, Text, between
 from geomgen.design.fuselage import FUSELAGE, FuselageSpec, fuselage_spec
 from geomgen.design.printed_model import MODEL, ModelSpec, model_spec
 from geomgen.design.requirements import REQUIREMENTS, Requirements, requirements_spec
 from geomgen.design.settings import DRAWINGS, SOLIDS, DrawingsSpec, SolidsSpec
 from geomgen.design.surfaces import SurfaceSpec, surface, surface_spec
+
+#: a design's name: the name of its output folder. Names ending in what geomgen adds to a name
+#: for the files beside the outputs (``NAME-model/``, ``NAME-sweep/``,
+#: ``NAME.failed-checks.json``) are refused: design ``a-model`` would share the folder of the
+#: printed model of design ``a``. (ASCII only, any case: also on a case-blind file system.)
+NAME_PATTERN = (
+    r"^(?!.*(?:-[mM][oO][dD][eE][lL]|-[sS][wW][eE][eE][pP]"
+    r"|\.[fF][aA][iI][lL][eE][dD]-[cC][hH][eE][cC][kK][sS]\.[jJ][sS][oO][nN])$)"
+    r"[A-Za-z0-9][A-Za-z0-9._-]*$"
+)
 
 DESIGN = Mapping(
     description="one airplane for geomgen",
@@ -24,20 +34,17 @@ DESIGN = Mapping(
             "name",
             Text(
                 max_length=60,
-                pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]*$",
-                pattern_words="letters, digits, '.', '_' or '-', starting with a letter or digit",
+                pattern=NAME_PATTERN,
+                pattern_words="letters, digits, '.', '_' or '-', starting with a letter or "
+                "digit, not ending in '-model', '-sweep' or '.failed-checks.json' (the names "
+                "of the folders and files geomgen writes beside a design's outputs)",
                 description="short name; used as the output folder name",
             ),
         ),
         ("title", Text(optional=True, description="longer title for reports")),
         (
             "date",
-            Text(
-                optional=True,
-                pattern=r"^\d{4}-\d{2}-\d{2}$",
-                pattern_words="a date written YYYY-MM-DD",
-                description="design date YYYY-MM-DD, printed on reports",
-            ),
+            Date(optional=True, description="design date YYYY-MM-DD, printed on reports"),
         ),
         (
             "units",

@@ -30,6 +30,15 @@ def _fmt(x: float) -> str:
     return f"{x:g}"
 
 
+def _shown(value: Any) -> str:
+    """A value as the message shows it: its repr, a long one cut short."""
+    try:
+        text = repr(value)
+    except ValueError:  # an int past the interpreter's limit of digits for text
+        return f"a whole number of about {int(value.bit_length() * 0.30103)} digits"
+    return text if len(text) <= 60 else f"{text[:40]}... ({len(text)} characters)"
+
+
 @dataclass(frozen=True)
 class Bounds:
     """Allowed interval of a value in SI; ``None`` = unbounded. Exclusive ends are open."""
@@ -123,12 +132,16 @@ class Number(Field):
     def parse(self, value: Any, path: str) -> float | int:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             allowed = self.bounds.describe()
-            raise FieldError(path, f"must be a plain number {allowed} (got {value!r})")
-        if self.integer and not float(value).is_integer():
-            raise FieldError(path, f"must be a whole number (got {value!r})")
-        if not self.bounds.check(float(value)):
-            raise FieldError(path, f"must be {self.bounds.describe()} (got {value!r})")
-        return int(value) if self.integer else float(value)
+            raise FieldError(path, f"must be a plain number {allowed} (got {_shown(value)})")
+        try:
+            number = float(value)
+        except OverflowError:  # an int beyond every float
+            number = math.inf
+        if self.integer and math.isfinite(number) and not number.is_integer():
+            raise FieldError(path, f"must be a whole number (got {_shown(value)})")
+        if not self.bounds.check(number):
+            raise FieldError(path, f"must be {self.bounds.describe()} (got {_shown(value)})")
+        return int(value) if self.integer else number
 
 
 @dataclass(frozen=True)
@@ -151,11 +164,20 @@ class Quantity(Field):
         try:
             si = parse_quantity(value, self.dimension)
         except UnitParseError as err:
-            raise FieldError(path, str(err)) from None
+            raise FieldError(path, _with_article(str(err), self.dimension)) from None
         if not self.bounds.check(si):
             unit, scale = _display_unit(self.dimension)
-            raise FieldError(path, f"must be {self.bounds.describe(scale, unit)} (got {value!r})")
+            raise FieldError(
+                path, f"must be {self.bounds.describe(scale, unit)} (got {_shown(value)})"
+            )
         return si
+
+
+def _with_article(message: str, dimension: str) -> str:
+    """ "must be a area" -> "must be an area": the article follows the dimension's name."""
+    if dimension[:1] in "aeiou":
+        return message.replace(f"must be a {dimension}", f"must be an {dimension}")
+    return message
 
 
 def _display_unit(dimension: str) -> tuple[str, float]:
@@ -182,16 +204,48 @@ class Text(Field):
 
     def parse(self, value: Any, path: str) -> str:
         if not isinstance(value, str):
-            raise FieldError(path, f"must be text (got {value!r})")
+            raise FieldError(path, f"must be text (got {_shown(value)})")
         if self.choices and value not in self.choices:
-            raise FieldError(path, f"must be one of {', '.join(self.choices)} (got {value!r})")
+            raise FieldError(
+                path, f"must be one of {', '.join(self.choices)} (got {_shown(value)})"
+            )
         if len(value) > self.max_length:
             raise FieldError(path, f"must be at most {self.max_length} characters long")
         if self.pattern and not re.fullmatch(self.pattern, value):
             raise FieldError(
-                path, f"must be {self.pattern_words or 'of the documented form'} (got {value!r})"
+                path,
+                f"must be {self.pattern_words or 'of the documented form'} (got {_shown(value)})",
             )
         return value
+
+
+@dataclass(frozen=True)
+class Date(Field):
+    """A day of the calendar written YYYY-MM-DD (ASCII digits; a day that exists, year 1 on).
+    YAML reads an unquoted date as text here (see ``yaml_nodes``)."""
+
+    def schema(self) -> dict[str, Any]:
+        body = {"type": "string", "pattern": DATE_PATTERN, "format": "date", "maxLength": 10}
+        return self._schema_common(body)
+
+    def parse(self, value: Any, path: str) -> str:
+        import datetime
+
+        if not isinstance(value, str) or not re.fullmatch(DATE_PATTERN, value):
+            raise FieldError(
+                path, f"must be a date written YYYY-MM-DD in the digits 0-9 (got {_shown(value)})"
+            )
+        try:
+            datetime.date.fromisoformat(value)
+        except ValueError as err:
+            raise FieldError(
+                path, f"must be a day of the calendar, YYYY-MM-DD ({err}; got {_shown(value)})"
+            ) from None
+        return value
+
+
+#: YYYY-MM-DD in ASCII digits (``\d`` would take the digits of every script)
+DATE_PATTERN = r"^[0-9]{4}-[0-9]{2}-[0-9]{2}$"
 
 
 @dataclass(frozen=True)
@@ -217,7 +271,7 @@ class AnyOf(Field):
         for option, message in zip(self.options, errors, strict=True):
             if _shape_fits(option, value):
                 raise FieldError(path, message)
-        raise FieldError(path, f"must be {self.summary} (got {value!r})")
+        raise FieldError(path, f"must be {self.summary} (got {_shown(value)})")
 
 
 def _shape_fits(option: Field, value: Any) -> bool:
@@ -241,7 +295,7 @@ class Flag(Field):
 
     def parse(self, value: Any, path: str) -> bool:
         if not isinstance(value, bool):
-            raise FieldError(path, f"must be true or false (got {value!r})")
+            raise FieldError(path, f"must be true or false (got {_shown(value)})")
         return value
 
 
@@ -266,10 +320,11 @@ class ListOf(Field):
         if not isinstance(value, list):
             raise FieldError(path, f"must be a list (got {type(value).__name__})")
         if not self.min_items <= len(value) <= self.max_items:
-            raise FieldError(
-                path,
-                f"must have {self.min_items} to {self.max_items} items (got {len(value)})",
-            )
+            if self.min_items == self.max_items:
+                wanted = f"exactly {self.min_items} item{'s' if self.min_items != 1 else ''}"
+            else:
+                wanted = f"{self.min_items} to {self.max_items} items"
+            raise FieldError(path, f"must have {wanted} (got {len(value)})")
         return [self.item.parse(v, f"{path}[{i}]") for i, v in enumerate(value)]
 
 
@@ -292,9 +347,10 @@ class Mapping(Field):
 
     def parse(self, value: Any, path: str) -> dict[str, Any]:
         if not isinstance(value, dict):
-            where = path or "the design"
             found = type(value).__name__
-            raise FieldError(path, f"{where} must be a mapping of keys (got {found})")
+            if path:  # the path leads the message already
+                raise FieldError(path, f"must be a mapping of keys (got {found})")
+            raise FieldError(path, f"the design must be a mapping of keys (got {found})")
         known = dict(self.fields)
         for key in value:
             if key not in known:

@@ -8,7 +8,6 @@ geomgen sees only ``Design``.
 from __future__ import annotations
 
 import json
-from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -50,25 +49,40 @@ def load(path: str | Path) -> Design:
 
 def loads(text: str, source: str = "<design>") -> Design:
     """Validate and convert design text (YAML). See :func:`load`."""
+    return from_mapping(parse_text(text, source), source=source)
+
+
+def read_document(path: str | Path) -> dict[str, Any]:
+    """The design file at ``path`` as the plain values the loader reads: for commands that
+    rewrite a design (the sweep's variants). Call :func:`load` on it first: that checks it."""
+    return parse_text(Path(path).read_text(encoding="utf-8"), str(path))
+
+
+def parse_text(text: str, source: str = "<design>") -> Any:
+    """YAML text -> plain Python values (dict, list, str, int, float, bool, None), read with
+    :mod:`geomgen.design.yaml_nodes` (plain YAML only: see there). InputError on bad text."""
     import yaml
+
+    from geomgen.design.yaml_nodes import PlainLoader, check
 
     _check_nesting(text, source)
     try:
-        loader = _strict_safe_loader()(text)  # a SafeLoader subclass: no arbitrary objects
+        loader = PlainLoader(text)
         try:
-            document = loader.get_single_data()
+            node = loader.get_single_node()
+            if node is None:
+                return None
+            check(node, loader, source)
+            return loader.construct_document(node)
         finally:
             loader.dispose()
     except RecursionError:  # PyYAML composes nested nodes recursively
         raise InputError(_too_deep(), source=source) from None
-    except _DuplicateKey as err:
-        raise InputError(str(err), source=source) from None
     except yaml.YAMLError as err:
         mark = getattr(err, "problem_mark", None)
         where = f"line {mark.line + 1}, column {mark.column + 1}: " if mark else ""
         problem = getattr(err, "problem", None) or "not valid YAML"
         raise InputError(f"{where}malformed YAML ({problem})", source=source) from None
-    return from_mapping(document, source=source)
 
 
 def _too_deep() -> str:
@@ -94,33 +108,6 @@ def _check_nesting(text: str, source: str) -> None:
                 depth -= 1
     except yaml.YAMLError:
         return  # the loader reports malformed YAML with its line and column
-
-
-class _DuplicateKey(ValueError):
-    pass
-
-
-@lru_cache(maxsize=1)
-def _strict_safe_loader():
-    """yaml.SafeLoader that refuses a key written twice in one mapping (PyYAML would keep the
-    last one silently, which hides a typo in a design file)."""
-    import yaml
-
-    class StrictSafeLoader(yaml.SafeLoader):
-        def construct_mapping(self, node, deep=False):
-            seen = set()
-            for key_node, _ in node.value:
-                key = self.construct_object(key_node, deep=True)
-                if key in seen:
-                    mark = key_node.start_mark
-                    raise _DuplicateKey(
-                        f"line {mark.line + 1}: key {key!r} is written twice in one mapping; "
-                        f"keep one"
-                    )
-                seen.add(key)
-            return super().construct_mapping(node, deep=deep)
-
-    return StrictSafeLoader
 
 
 def from_mapping(document: Any, source: str = "<design>") -> Design:
@@ -180,11 +167,16 @@ def _validate_structure(document: dict[str, Any], source: str) -> None:
     raise InputError(error.message.splitlines()[0][:200], source=source, path=path or None)
 
 
-def _plain(value: Any, budget: list[int], source: str, depth: int = 0) -> Any:
+def _plain(value: Any, budget: list[int], source: str, depth: int = 0, path: str = "") -> Any:
     """YAML may give dates and other types; make a JSON-like copy for the checks.
 
     ``budget`` holds how many more values may be copied (YAML aliases can make a small file
-    expand into a huge tree); ``depth`` is the nesting level (refused past the limit)."""
+    expand into a huge tree); ``depth`` is the nesting level (refused past the limit); ``path``
+    the key path of ``value``. A whole number beyond :data:`yaml_nodes.MAX_DIGITS` digits is
+    refused here (no check downstream could even show it: Python refuses to write an int of
+    more than 4300 digits as text)."""
+    from geomgen.design.yaml_nodes import MAX_DIGITS
+
     if depth > MAX_DESIGN_DEPTH:
         raise InputError(_too_deep(), source=source)
     budget[0] -= 1
@@ -195,9 +187,20 @@ def _plain(value: Any, budget: list[int], source: str, depth: int = 0) -> Any:
             source=source,
         )
     if isinstance(value, dict):
-        return {str(k): _plain(v, budget, source, depth + 1) for k, v in value.items()}
+        return {
+            str(k): _plain(v, budget, source, depth + 1, f"{path}.{k}" if path else str(k))
+            for k, v in value.items()
+        }
     if isinstance(value, list):
-        return [_plain(v, budget, source, depth + 1) for v in value]
+        return [_plain(v, budget, source, depth + 1, f"{path}[{i}]") for i, v in enumerate(value)]
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) >= 10**MAX_DIGITS:
+        digits = int(abs(value).bit_length() * 0.30103) + 1
+        raise InputError(
+            f"a whole number of about {digits} digits is beyond any design value (at most "
+            f"{MAX_DIGITS} digits are read)",
+            source=source,
+            path=path or None,
+        )
     if value is None or isinstance(value, (str, int, float, bool)):
         return value
     return json.loads(json.dumps(value, default=str))

@@ -60,6 +60,11 @@ def _read_text(path: Path) -> str:
         return data.decode("latin-1")
 
 
+#: largest coordinate magnitude read from a file: a section in metres, millimetres or chord
+#: units is far smaller, and squares of lengths (areas, cross products) stay far from overflow
+MAX_COORDINATE = 1e12
+
+
 def _parse(text: str, src: str) -> tuple[str | None, np.ndarray, np.ndarray]:
     """Name line (or None), points (N, 2) and their 1-based line numbers."""
     name: str | None = None
@@ -79,6 +84,14 @@ def _parse(text: str, src: str) -> tuple[str | None, np.ndarray, np.ndarray]:
         if not all(np.isfinite(pair)):
             raise InputError(
                 f"line {no}: coordinates must be finite numbers (got {line!r})", source=src
+            )
+        if max(abs(pair[0]), abs(pair[1])) > MAX_COORDINATE:
+            shown = line if len(line) <= 60 else line[:57] + "..."
+            raise InputError(
+                f"line {no}: a coordinate beyond {MAX_COORDINATE:g} would overflow the "
+                f"section's arithmetic (squares and products past about 1e308); write the "
+                f"section in chord units or millimetres (got {shown!r})",
+                source=src,
             )
         pts.append(pair)
         lines.append(no)

@@ -9,8 +9,10 @@ naming the folder and the reason, and leave no temporary folder behind."""
 
 from __future__ import annotations
 
+import contextlib
 import errno
 import os
+import re
 import shutil
 import tempfile
 from pathlib import Path
@@ -33,23 +35,102 @@ def cannot_write(err: OSError, where: Path, what: str = "the output folder"):
     return InputError(f"cannot write {what} ({_reason(err)})", source=str(where))
 
 
-def prepare_parent(target: Path) -> Path:
-    """Check that ``target`` may become an output folder and make its parent; returns it."""
+def resolve_target(target: Path) -> Path:
+    """The folder the outputs go to: ``target``, or where it points if it is a symbolic link
+    (the outputs are written through the link, which stays). A link to nothing is refused."""
+    target = Path(target)
+    if not target.is_symlink():
+        return target
+    real = target.resolve()
+    if not real.exists():
+        raise InputError(
+            f"output folder is a symbolic link to {real}, which does not exist; make that "
+            "folder or remove the link",
+            source=str(target),
+        )
+    return real
+
+
+def prepare_parent(target: Path, made: list[Path] | None = None) -> Path:
+    """Check that ``target`` may become an output folder and make its parent; returns it.
+    The folders it makes are appended to ``made`` (outermost first)."""
     target = Path(target)
     if target.exists() and not target.is_dir():
         raise InputError("output path exists and is not a folder", source=str(target))
+    missing = []
+    for folder in [target.parent, *target.parent.parents]:
+        if folder.exists() or folder.is_symlink():
+            break
+        missing.append(folder)
     try:
         target.parent.mkdir(parents=True, exist_ok=True)
     except OSError as err:
         raise cannot_write(err, target.parent) from None
+    if made is not None:
+        made.extend(reversed(missing))
     return target.parent
+
+
+def remove_empty(folders: list[Path]) -> None:
+    """Remove those of ``folders`` (outermost first) that are empty, innermost first: what a
+    refused run made on the way to its output folder."""
+    for folder in reversed(folders):
+        try:
+            folder.rmdir()
+        except OSError:
+            return
+
+
+def remove_tree(path: Path) -> None:
+    """Remove a folder of ours, also one whose folders were made read-only (an old output
+    folder a user protected): each folder is made writable first. Symbolic links inside are
+    removed, never followed."""
+
+    def writable(folder: str) -> None:
+        try:
+            os.chmod(folder, 0o700, follow_symlinks=False)
+            with os.scandir(folder) as entries:
+                subfolders = [e.path for e in entries if e.is_dir(follow_symlinks=False)]
+        except OSError:
+            return
+        for sub in subfolders:
+            writable(sub)
+
+    if os.path.isdir(path) and not os.path.islink(path):
+        writable(os.fspath(path))
+        shutil.rmtree(path, ignore_errors=True)
+    else:
+        with contextlib.suppress(FileNotFoundError):
+            os.unlink(path)
+
+
+def temporary_names(target: Path) -> re.Pattern:
+    """The names :class:`OutputFolder` gives its folders beside ``target``: ``.NAME.`` and
+    eight characters of ``tempfile.mkdtemp`` (a-z, 0-9, _), or ``.NAME.old-PID``. A dotted
+    design name (``a.b``) does not match those of another (``a``): its own hold a dot more."""
+    return re.compile(rf"\.{re.escape(Path(target).name)}\.(?:[a-z0-9_]{{8}}|old-[0-9]+)")
+
+
+def sweep_stale(target: Path) -> None:
+    """Remove the temporary folders a killed run into ``target`` left beside it. Call it only
+    while holding the lock of ``target`` (``store.lock.FolderLock``): then no other run is
+    writing into it, and every such folder is stale by construction."""
+    target = Path(target)
+    names = temporary_names(target)
+    try:
+        entries = list(os.scandir(target.parent))
+    except OSError:
+        return
+    for entry in entries:
+        if names.fullmatch(entry.name):
+            remove_tree(Path(entry.path))
 
 
 class OutputFolder:
     """Context manager: ``with OutputFolder(target) as f: f.write_text("a.json", text)``."""
 
     def __init__(self, target: Path):
-        self.target = Path(target)
+        self.target = resolve_target(target)
         self.temp: Path | None = None
 
     def __enter__(self) -> OutputFolder:
@@ -111,4 +192,4 @@ class OutputFolder:
             raise
         os.chmod(self.target, 0o755)
         if old is not None:
-            shutil.rmtree(old, ignore_errors=True)
+            remove_tree(old)

@@ -27,7 +27,13 @@ from pathlib import Path
 from types import TracebackType
 
 from geomgen.errors import FolderBusyError
-from geomgen.store.folder import cannot_write, prepare_parent
+from geomgen.store.folder import (
+    cannot_write,
+    prepare_parent,
+    remove_empty,
+    resolve_target,
+    sweep_stale,
+)
 
 #: tries to take a lock whose file is being replaced under us before giving up
 ATTEMPTS = 20
@@ -43,13 +49,23 @@ class FolderLock:
     """Context manager: the lock of output folder ``target`` for a run of ``command``."""
 
     def __init__(self, target: Path, command: str):
-        self.target = Path(target)
+        self.target = resolve_target(target)
         self.command = command
         self.path = lock_path(self.target)
         self.fd: int | None = None
+        self.made: list[Path] = []  # folders made on the way to the target's parent
 
     def __enter__(self) -> FolderLock:
-        prepare_parent(self.target)
+        prepare_parent(self.target, self.made)
+        try:
+            self._take()
+        except BaseException:
+            remove_empty(self.made)
+            raise
+        sweep_stale(self.target)  # ours alone now: what a killed run left is stale
+        return self
+
+    def _take(self) -> None:
         for _ in range(ATTEMPTS):
             try:
                 fd = os.open(self.path, os.O_RDWR | os.O_CREAT | os.O_CLOEXEC, 0o644)
@@ -77,7 +93,6 @@ class FolderLock:
             )
         self.fd = fd
         self._record()
-        return self
 
     def _record(self) -> None:
         """Who holds the lock, for the message of a run that finds it taken. Best effort:
@@ -105,6 +120,7 @@ class FolderLock:
             self.path.unlink()
         os.close(self.fd)  # releases the lock
         self.fd = None
+        remove_empty(self.made)  # a refused run leaves no empty folders behind
 
 
 def _still_at(fd: int, path: Path) -> bool:

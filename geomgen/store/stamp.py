@@ -49,6 +49,9 @@ def output_time(design=None, environ: Mapping[str, str] | None = None) -> dateti
     if isinstance(given, date):
         return datetime(given.year, given.month, given.day, tzinfo=UTC)
     if isinstance(given, str) and given:
-        day = date.fromisoformat(given)  # the design loader has checked YYYY-MM-DD
+        try:
+            day = date.fromisoformat(given)  # the design loader has checked it already
+        except ValueError as err:
+            raise InputError(f"a day of the calendar YYYY-MM-DD ({err})", path="date") from None
         return datetime(day.year, day.month, day.day, tzinfo=UTC)
     return FALLBACK
