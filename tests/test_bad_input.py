@@ -877,3 +877,23 @@ def test_plan_cuts_refuses_absurd_piece_counts() -> None:
     assert len(mdl.plan_cuts(0.0, 1000.0, 208.0, [])) == 4  # ceil(1000 / 208) = 5 pieces
     with pytest.raises(GeometryError, match=f"at most {mdl.MAX_MODEL_PIECES} are made"):
         mdl.plan_cuts(0.0, 1_000_000.0, 8.0, [])
+
+
+def test_libyaml_reads_the_demo_as_the_pure_python_parser_does() -> None:
+    """The loader reads with libyaml when PyYAML has it and falls back to the pure-Python
+    parser for every refusal: both must give the same document for valid text."""
+    from geomgen.design import loader
+
+    fast = loader._strict_safe_loader(libyaml=True)
+    if fast is None:
+        pytest.skip("PyYAML built without libyaml")
+    texts = [
+        DEMO_TEXT,
+        DEMO_TEXT.replace("name: veyra-t2", "name: 'veyra-t2'"),
+        "a: [1, 2.5, .inf]",
+    ]
+    for text in texts:
+        assert loader._read_with_libyaml(text) == yaml.load(text, Loader=yaml.SafeLoader)
+    # a key written twice is refused by both; the refusal is worded by the pure-Python loader
+    assert loader._read_with_libyaml(DEMO_TEXT + "name: second\n") is loader._UNREAD
+    assert loader._read_with_libyaml("a: [1,\n") is loader._UNREAD

@@ -53,6 +53,9 @@ def loads(text: str, source: str = "<design>") -> Design:
     import yaml
 
     _check_nesting(text, source)
+    document = _read_with_libyaml(text)
+    if document is not _UNREAD:
+        return from_mapping(document, source=source)
     try:
         loader = _strict_safe_loader()(text)  # a SafeLoader subclass: no arbitrary objects
         try:
@@ -71,6 +74,26 @@ def loads(text: str, source: str = "<design>") -> Design:
     return from_mapping(document, source=source)
 
 
+_UNREAD = object()
+
+
+def _read_with_libyaml(text: str) -> Any:
+    """The document read by PyYAML's libyaml parser with the strict safe constructor (ten
+    times faster than the pure-Python parser), or ``_UNREAD`` when libyaml is missing or the
+    text is refused: the pure-Python loader then reads it again and words the refusal."""
+    loader_class = _strict_safe_loader(libyaml=True)
+    if loader_class is None:
+        return _UNREAD
+    try:
+        loader = loader_class(text)
+        try:
+            return loader.get_single_data()
+        finally:
+            loader.dispose()
+    except Exception:  # noqa: BLE001 - every refusal is worded by the pure-Python loader
+        return _UNREAD
+
+
 def _too_deep() -> str:
     return (
         f"nests lists or mappings more than {MAX_DESIGN_DEPTH} levels deep; a design file "
@@ -83,30 +106,51 @@ def _check_nesting(text: str, source: str) -> None:
     the depth is counted on the parser's events, which come without recursion."""
     import yaml
 
-    depth = 0
+    # libyaml's events first (fast); text it refuses or finds too deep is counted again by
+    # the pure-Python parser, which decides as before
+    fast = getattr(yaml, "CSafeLoader", None)
+    if fast is not None:
+        try:
+            _count_depth(yaml.parse(text, Loader=fast), source)
+            return
+        except (yaml.YAMLError, InputError):
+            pass
     try:
-        for event in yaml.parse(text, Loader=yaml.SafeLoader):
-            if isinstance(event, (yaml.SequenceStartEvent, yaml.MappingStartEvent)):
-                depth += 1
-                if depth > MAX_DESIGN_DEPTH + 1:  # + 1: the document's own mapping
-                    raise InputError(_too_deep(), source=source)
-            elif isinstance(event, (yaml.SequenceEndEvent, yaml.MappingEndEvent)):
-                depth -= 1
+        _count_depth(yaml.parse(text, Loader=yaml.SafeLoader), source)
     except yaml.YAMLError:
         return  # the loader reports malformed YAML with its line and column
+
+
+def _count_depth(events, source: str) -> None:
+    """Refuse nesting deeper than MAX_DESIGN_DEPTH in a stream of YAML parser events."""
+    import yaml
+
+    depth = 0
+    for event in events:
+        if isinstance(event, (yaml.SequenceStartEvent, yaml.MappingStartEvent)):
+            depth += 1
+            if depth > MAX_DESIGN_DEPTH + 1:  # + 1: the document's own mapping
+                raise InputError(_too_deep(), source=source)
+        elif isinstance(event, (yaml.SequenceEndEvent, yaml.MappingEndEvent)):
+            depth -= 1
 
 
 class _DuplicateKey(ValueError):
     pass
 
 
-@lru_cache(maxsize=1)
-def _strict_safe_loader():
+@lru_cache(maxsize=2)
+def _strict_safe_loader(libyaml: bool = False):
     """yaml.SafeLoader that refuses a key written twice in one mapping (PyYAML would keep the
-    last one silently, which hides a typo in a design file)."""
+    last one silently, which hides a typo in a design file); with ``libyaml`` the same on
+    yaml.CSafeLoader (None where PyYAML was built without libyaml)."""
     import yaml
 
-    class StrictSafeLoader(yaml.SafeLoader):
+    base = getattr(yaml, "CSafeLoader", None) if libyaml else yaml.SafeLoader
+    if base is None:
+        return None
+
+    class StrictSafeLoader(base):
         def construct_mapping(self, node, deep=False):
             seen = set()
             for key_node, _ in node.value:
