@@ -14,7 +14,6 @@ import sys
 from pathlib import Path
 
 from geomgen import __version__
-from geomgen.commands.model import run_model
 from geomgen.commands.pipeline import run_build, run_size
 from geomgen.errors import GeomgenError, InputError
 
@@ -293,6 +292,8 @@ def _run(args: argparse.Namespace) -> int:
                     raise InputError(str(err), path="--span") from None
                 if not 0.05 <= span <= 5.0:
                     raise InputError(f"must be 50 mm to 5 m (got {args.span!r})", path="--span")
+            from geomgen.commands.model import run_model  # only this command uses it
+
             result = run_model(
                 Path(args.design),
                 Path(args.out),

@@ -234,6 +234,21 @@ def test_size_does_not_import_the_cad_kernel(tmp_path: Path) -> None:
     assert result.returncode == 0, result.stderr
 
 
+def test_size_without_drawings_imports_only_what_it_uses(tmp_path: Path) -> None:
+    # the demo's units are all in the table of common units: pint is not needed; no drawing
+    # is made: neither matplotlib nor ezdxf
+    code = (
+        "import sys; from geomgen.cli import main; "
+        f"assert main(['size', {str(DEMO)!r}, '--out', {str(tmp_path)!r}, '--no-drawings']) == 0; "
+        "unused = [m for m in ('pint', 'matplotlib', 'ezdxf', 'cadquery', 'trimesh') "
+        "if m in sys.modules]; assert not unused, unused"
+    )
+    result = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=60
+    )
+    assert result.returncode == 0, result.stderr
+
+
 def test_rerun_replaces_outputs_and_leaves_no_temporary_folders(tmp_path: Path) -> None:
     out = tmp_path / "out"
     folder = run_size(out, "--no-drawings")

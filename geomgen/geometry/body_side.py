@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 from geomgen.design import BodyStation
-from geomgen.geometry.frame import place
+from geomgen.geometry.frame import place_each
 from geomgen.shapes import fuselage
 from geomgen.sizing.aircraft import SurfaceSizing
 
@@ -25,7 +25,7 @@ def body_loops(stations: tuple[BodyStation, ...], xq: np.ndarray, n: int = LOOP_
     xq = np.asarray(xq, dtype=float)
     x0, x1 = stations[0].x, stations[-1].x
     within = (xq >= x0) & (xq <= x1)
-    _, loops, _ = fuselage._blend(stations, np.clip(xq, x0, x1), False, n)
+    _, loops, _ = fuselage._blend(stations, np.clip(xq, x0, x1), False, n, slopes=False)
     return loops, within
 
 
@@ -77,7 +77,7 @@ def body_side(
     side = "centre" if fin else "right"
     s = guess.astype(float).copy()
     for _ in range(6):
-        pts = np.array([place(ss, side, si, p[None, :])[0] for si, p in zip(s, unit, strict=True)])
+        pts = place_each(ss, side, s, unit)
         loops, within = body_loops(stations, pts[:, 0])
         if fin:  # the body's top above the point's butt line
             found = _crossings(loops, 1, pts[:, 1]) - ss.apex_z

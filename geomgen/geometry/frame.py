@@ -52,3 +52,41 @@ def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndar
         out[:, 1] = nr
         out[:, 2] = ss.apex_z + s
     return out
+
+
+def place_each(ss: SurfaceSizing, side: str, s: np.ndarray, points: np.ndarray) -> np.ndarray:
+    """``place`` of each point at its own station: point i (x/c, y/c) of ``points`` (N, 2) at
+    s[i]. Returns (N, 3), m, equal to placing each point alone (the same operations in the same
+    order; the per-station numbers come from the planform one station at a time)."""
+    pts = np.asarray(points, dtype=float).reshape(-1, 2)
+    s = np.asarray(s, dtype=float).reshape(-1)
+    pf, spec = ss.planform, ss.spec
+    n_pts = len(pts)
+    x_le = np.empty(n_pts)
+    chord_linear = np.empty(n_pts)
+    rise = np.empty(n_pts)
+    chord = np.empty(n_pts)
+    ct = np.empty(n_pts)
+    st = np.empty(n_pts)
+    for i, si in enumerate(s.tolist()):
+        x_le[i], chord_linear[i], rise[i], _ = pf.at(si)
+        chord[i], twist = pf.section_frame(si)
+        ct[i], st[i] = math.cos(twist), math.sin(twist)
+    a = spec.twist_axis
+    u = (pts[:, 0] - a) * chord
+    v = pts[:, 1] * chord
+    x = x_le + a * chord_linear + u * ct + v * st
+    n = rise - u * st + v * ct
+    x0 = a * pf.root_chord
+    ci, si_ = math.cos(spec.incidence), math.sin(spec.incidence)
+    xr = x0 + (x - x0) * ci + n * si_
+    nr = -(x - x0) * si_ + n * ci
+    out = np.empty((n_pts, 3))
+    out[:, 0] = ss.apex_x + xr
+    if pf.symmetric:
+        out[:, 1] = s if side == "right" else -s
+        out[:, 2] = ss.apex_z + nr
+    else:
+        out[:, 1] = nr
+        out[:, 2] = ss.apex_z + s
+    return out

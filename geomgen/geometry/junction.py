@@ -21,7 +21,7 @@ import numpy as np
 from geomgen.design import BodyStation
 from geomgen.errors import InputError
 from geomgen.geometry.body_side import body_loops, body_side, contains
-from geomgen.geometry.frame import place
+from geomgen.geometry.frame import place, place_each
 from geomgen.geometry.layout import Layout, SurfaceLayout, settled_body_side
 from geomgen.geometry.mount import Junction
 from geomgen.shapes import fuselage
@@ -51,14 +51,16 @@ def _exposed_side_area(ss: SurfaceSizing, side_x: np.ndarray, side_s: np.ndarray
     outboard = area_between(pf, s_hi, pf.semi_span)
     m = 400
     edges = np.linspace(s_lo, s_hi, m + 1)
-    total = 0.0
     order = np.argsort(side_x)
     sx, sv = side_x[order], side_s[order]
-    for s in 0.5 * (edges[:-1] + edges[1:]):
-        x_le, chord, _, _ = pf.at(float(s))
-        x = ss.apex_x + x_le + chord * (np.arange(m) + 0.5) / m
-        beyond = s > np.interp(x, sx, sv)
-        total += chord * np.count_nonzero(beyond) / m
+    mids = 0.5 * (edges[:-1] + edges[1:])
+    frames = np.array([pf.at(s)[:2] for s in mids.tolist()])  # (m, 2): x_le, chord
+    chord = frames[:, 1]
+    x = (ss.apex_x + frames[:, 0])[:, None] + chord[:, None] * (np.arange(m) + 0.5) / m
+    counts = np.count_nonzero(mids[:, None] > np.interp(x, sx, sv), axis=1)
+    total = 0.0
+    for c, k in zip(chord.tolist(), counts.tolist(), strict=True):  # the rows in order
+        total += c * k / m
     return outboard + total * (s_hi - s_lo) / m
 
 
@@ -83,9 +85,7 @@ def _junction(
     # where the chord runs past the body's nose or tail the surface is exposed to its root
     s_line = np.where(np.isnan(s_line), 0.0, s_line)
     side = "centre" if not pf.symmetric else "right"
-    side_x = np.array(
-        [place(ss, side, s, p[None, :])[0][0] for s, p in zip(s_line, line, strict=True)]
-    )
+    side_x = place_each(ss, side, s_line, line)[:, 0]
     surface = np.vstack([unit_upper, unit_lower])
     s_surface = body_side(ss, stations, surface, np.full(len(surface), float(s_line.mean())))
     overhang = bool(np.any(np.isnan(s_surface)))

@@ -251,6 +251,32 @@ def section_points(st: BodyStation, n: int, shares: Shares | None = None) -> np.
 # --- the body between stations --------------------------------------------------------------
 
 
+@lru_cache(maxsize=16)
+def _spline_matrix(xs: tuple[float, ...]) -> np.ndarray:
+    """S (n, n): the natural cubic spline's second derivatives at the stations, M = S @ values
+    (zero rows at both ends). Cached per set of stations (read-only)."""
+    n = len(xs)
+    h = np.diff(np.array(xs))
+    # second derivatives M = S @ values: h[i-1] M[i-1] + 2 (h[i-1] + h[i]) M[i] + h[i] M[i+1]
+    # = 6 ((y[i+1] - y[i]) / h[i] - (y[i] - y[i-1]) / h[i-1]), M[0] = M[n-1] = 0
+    lhs = np.zeros((n - 2, n - 2))
+    rhs = np.zeros((n - 2, n))
+    for k, i in enumerate(range(1, n - 1)):
+        lhs[k, k] = 2.0 * (h[i - 1] + h[i])
+        if k > 0:
+            lhs[k, k - 1] = h[i - 1]
+        if k < n - 3:
+            lhs[k, k + 1] = h[i]
+        rhs[k, i + 1] += 6.0 / h[i]
+        rhs[k, i] -= 6.0 / h[i] + 6.0 / h[i - 1]
+        rhs[k, i - 1] += 6.0 / h[i - 1]
+
+    S = np.zeros((n, n))
+    S[1:-1] = np.linalg.solve(lhs, rhs)
+    S.flags.writeable = False
+    return S
+
+
 def _weights(
     xs: np.ndarray, xq: np.ndarray, ruled: bool, idx: np.ndarray | None = None
 ) -> tuple[np.ndarray, np.ndarray]:
@@ -274,21 +300,7 @@ def _weights(
     dW[rows, idx + 1] += 1.0 / hi
     if ruled or n < 3:
         return W, dW
-    # second derivatives M = S @ values: h[i-1] M[i-1] + 2 (h[i-1] + h[i]) M[i] + h[i] M[i+1]
-    # = 6 ((y[i+1] - y[i]) / h[i] - (y[i] - y[i-1]) / h[i-1]), M[0] = M[n-1] = 0
-    lhs = np.zeros((n - 2, n - 2))
-    rhs = np.zeros((n - 2, n))
-    for k, i in enumerate(range(1, n - 1)):
-        lhs[k, k] = 2.0 * (h[i - 1] + h[i])
-        if k > 0:
-            lhs[k, k - 1] = h[i - 1]
-        if k < n - 3:
-            lhs[k, k + 1] = h[i]
-        rhs[k, i + 1] += 6.0 / h[i]
-        rhs[k, i] -= 6.0 / h[i] + 6.0 / h[i - 1]
-        rhs[k, i - 1] += 6.0 / h[i - 1]
-    S = np.zeros((n, n))
-    S[1:-1] = np.linalg.solve(lhs, rhs)
+    S = _spline_matrix(tuple(xs.tolist()))
     c_a = ((A**3 - A) * hi**2 / 6.0)[:, None]
     c_b = ((B**3 - B) * hi**2 / 6.0)[:, None]
     W += c_a * S[idx] + c_b * S[idx + 1]
@@ -313,25 +325,32 @@ def _simpson(values: np.ndarray, grid: np.ndarray) -> float:
     return float((h / 3.0 * (values[:, 0] + values[:, -1] + inner)).sum())
 
 
+@lru_cache(maxsize=16)
+def _station_loops(stations: tuple[BodyStation, ...], loops: int) -> np.ndarray:
+    """The stations' loops (n, loops, 2) (y, z), m, in corresponding points (read-only)."""
+    shares = body_shares(stations)
+    out = np.stack([_loop_yz(s, loops, shares) + np.array([0.0, s.z]) for s in stations])
+    out.flags.writeable = False
+    return out
+
+
 def _blend(
     stations: tuple[BodyStation, ...],
     xq: np.ndarray,
     ruled: bool,
     loops: int,
     idx: np.ndarray | None = None,
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    slopes: bool = True,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray | None]:
     """Station weights at xq and the blended loops (len(xq), loops, 2) (y, z) with their
-    x-derivatives."""
+    x-derivatives (None unless ``slopes``)."""
     xs = np.array([s.x for s in stations])
     W, dW = _weights(xs, xq, ruled, idx)
-    shares = body_shares(stations)
-    station_loops = np.stack(
-        [_loop_yz(s, loops, shares) + np.array([0.0, s.z]) for s in stations]
-    )  # (n, loops, 2)
+    station_loops = _station_loops(tuple(stations), loops)  # (n, loops, 2)
     return (
         W,
         np.einsum("qk,kpj->qpj", W, station_loops),
-        np.einsum("qk,kpj->qpj", dW, station_loops),
+        np.einsum("qk,kpj->qpj", dW, station_loops) if slopes else None,
     )
 
 
@@ -392,6 +411,11 @@ def volume_by_sections(stations: tuple[BodyStation, ...], ruled: bool = False) -
     """Volume (m^3) as the integral of section area along x (Cavalieri: the sections lie in
     parallel planes), Simpson's rule on every station interval. Areas are closed forms of the
     blended sizes when all stations have one shape; otherwise polygons of the blended loops."""
+    return _volume_by_sections(tuple(stations), ruled)
+
+
+@lru_cache(maxsize=8)
+def _volume_by_sections(stations: tuple[BodyStation, ...], ruled: bool) -> float:
     grid, idx = _grid(stations, _STEPS)
     W, loop, _ = _blend(stations, grid.ravel(), ruled, _LOOP, idx)
     family, a, b, r = _sizes_and_family(stations, W)
@@ -403,6 +427,11 @@ def wetted_area_by_perimeters(stations: tuple[BodyStation, ...], ruled: bool = F
     section perimeter times the loop's mean slope factor sqrt(1 + v_n^2) (1 for a cylinder,
     sqrt(1 + r'^2) for a body of revolution). Perimeters are closed forms (Ramanujan's second
     approximation for ellipses) when all stations have one shape."""
+    return _wetted_area_by_perimeters(tuple(stations), ruled)
+
+
+@lru_cache(maxsize=8)
+def _wetted_area_by_perimeters(stations: tuple[BodyStation, ...], ruled: bool) -> float:
     grid, idx = _grid(stations, _STEPS)
     W, loop, dloop = _blend(stations, grid.ravel(), ruled, _LOOP, idx)
     family, a, b, r = _sizes_and_family(stations, W)
