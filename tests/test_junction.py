@@ -8,7 +8,7 @@ import math
 
 import numpy as np
 import pytest
-from designs import PROFILES, make_design, trapezoid_document
+from designs import PROFILES, demo_document, make_design, trapezoid_document
 
 from geomgen.design import BodyStation
 from geomgen.errors import InputError
@@ -236,3 +236,32 @@ def test_junction_checks_catch_a_fin_through_the_far_side(fin_build) -> None:
     assert not pierce.passed and pierce.measured > 0
     root = results["root-end mesh points outside the body"]
     assert not root.passed  # its root end lies outside, below the body
+
+
+def test_a_steep_dihedral_finds_the_body_side_through_the_top() -> None:
+    # 45 deg of dihedral on the shoulder wing carries the chord over the cabin top between two
+    # steps of the fixed point (it was refused, blamed on wing.apex with "-888 mm"): the body
+    # side is where each chord point leaves the body, checked on the body itself: 1 mm
+    # inboard the point is inside, 1 mm outboard outside (common practice: a boundary by
+    # bracketing)
+    from geomgen.geometry.body_side import body_side, contains
+    from geomgen.geometry.frame import place_each
+    from geomgen.geometry.junction import mount
+    from geomgen.geometry.layout import lay_out
+    from geomgen.shapes.fuselage import expand
+    from geomgen.sizing.aircraft import size
+
+    doc = demo_document()
+    doc["wing"]["dihedral"] = "45 deg"
+    layout = mount(lay_out(size(make_design(doc))))
+    wing = layout.surface("wing")
+    assert wing.junction is not None and wing.junction.exposed_area > 0
+    ss = wing.sizing
+    stations = expand(make_design(doc).fuselage)
+    line = np.column_stack([np.linspace(0.02, 0.98, 25), np.zeros(25)])
+    s = body_side(ss, stations, line, np.zeros(len(line)))
+    found = ~np.isnan(s)
+    assert found.sum() >= 20
+    inboard = contains(stations, place_each(ss, "right", s[found] - 1e-3, line[found]))
+    outboard = contains(stations, place_each(ss, "right", s[found] + 1e-3, line[found]))
+    assert inboard.all() and not outboard.any()

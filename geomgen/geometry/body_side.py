@@ -85,9 +85,37 @@ def body_side(
             found = _crossings(loops, 0, pts[:, 2])
         found = np.where(within, found, np.nan)
         if np.all(np.isnan(found)):
-            return found
+            break
         done = np.nanmax(np.abs(found - s)) < 1e-7
         s = np.where(np.isnan(found), s, found)
         if done:
             break
-    return np.where(np.isnan(found), np.nan, s)
+    result = np.where(np.isnan(found), np.nan, s)
+    lost = np.isnan(result)
+    if np.any(lost):
+        result[lost] = _body_side_by_halving(ss, stations, side, unit[lost], guess[lost])
+    return result
+
+
+#: halvings of the station interval when the fixed point loses a point (1e-12 of the span)
+_HALVINGS = 45
+
+
+def _body_side_by_halving(
+    ss: SurfaceSizing, stations: tuple[BodyStation, ...], side: str, unit, guess
+) -> np.ndarray:
+    """The body side of points the fixed point lost (m): a steep dihedral carries a point over
+    the body's top between two steps, where no side crossing exists at its water line. A point
+    inside the body at its guess and outside at the tip is halved to where it leaves the body
+    (through the side or the top); any other point has no body side (NaN)."""
+    lo = np.asarray(guess, dtype=float).copy()
+    hi = np.full(len(lo), ss.planform.semi_span)
+    inside_lo = contains(stations, place_each(ss, side, lo, unit))
+    inside_hi = contains(stations, place_each(ss, side, hi, unit))
+    ok = inside_lo & ~inside_hi
+    for _ in range(_HALVINGS):
+        mid = 0.5 * (lo + hi)
+        inside = contains(stations, place_each(ss, side, mid, unit))
+        lo = np.where(inside, mid, lo)
+        hi = np.where(inside, hi, mid)
+    return np.where(ok, 0.5 * (lo + hi), np.nan)

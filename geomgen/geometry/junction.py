@@ -178,11 +178,17 @@ def _off_body(ss: SurfaceSizing, stations: tuple[BodyStation, ...], source: str)
             f"passes above the fuselage (z = {z:.3f} m; its top along the chord is at "
             f"most z = {top:.3f} m)"
         )
-    else:
+    elif z < bottom:
         change = f"raise {key}.apex.z by at least {_mm_up(bottom - z)} mm"
         words = (
             f"passes below the fuselage (z = {z:.3f} m; its bottom along the chord is "
             f"at least z = {bottom:.3f} m)"
+        )
+    else:  # within the body's height, yet outside its sections along the chord
+        change = f"move {key}.apex to a point inside the body's section at x = {x_le:.3f} m"
+        words = (
+            f"lies outside the body's sections there although within its height "
+            f"(z = {z:.3f} m between {bottom:.3f} and {top:.3f} m)"
         )
     # (the path names the apex as a whole: its x may be the better change for a wing)
     return InputError(f"{where} {words}; {change}", source=source, path=f"{key}.apex")
