@@ -26,16 +26,24 @@ def place(ss: SurfaceSizing, side: str, s: float, points: np.ndarray) -> np.ndar
     ``side`` is right, left or centre (fin).
     """
     pts = np.asarray(points, dtype=float).reshape(-1, 2)
-    pf, spec = ss.planform, ss.spec
+    pf = ss.planform
     x_le, chord_linear, rise, _ = pf.at(s)
     # the ruled panel's section: its own chord and twist (equal to the linear ones on a panel
     # of one twist), about the blended axis point
     chord, twist = pf.section_frame(s)
+    ct, st = math.cos(twist), math.sin(twist)
+    return _turned(ss, side, s, pts, (x_le, chord_linear, rise, chord, ct, st))
+
+
+def _turned(ss: SurfaceSizing, side: str, s, pts: np.ndarray, frame) -> np.ndarray:
+    """The arithmetic of ``place``, for one station (floats) or one per point (arrays):
+    ``frame`` is (x_le, linear chord, rise, ruled chord, cos twist, sin twist)."""
+    x_le, chord_linear, rise, chord, ct, st = frame
+    pf, spec = ss.planform, ss.spec
     a = spec.twist_axis
     # twist about the section's own axis point (local frame: x aft from apex, n normal)
     u = (pts[:, 0] - a) * chord
     v = pts[:, 1] * chord
-    ct, st = math.cos(twist), math.sin(twist)
     x = x_le + a * chord_linear + u * ct + v * st
     n = rise - u * st + v * ct
     # incidence: rigid turn about the root's axis point (x = a c_root, n = 0), nose up positive
@@ -60,7 +68,7 @@ def place_each(ss: SurfaceSizing, side: str, s: np.ndarray, points: np.ndarray) 
     order; the per-station numbers come from the planform one station at a time)."""
     pts = np.asarray(points, dtype=float).reshape(-1, 2)
     s = np.asarray(s, dtype=float).reshape(-1)
-    pf, spec = ss.planform, ss.spec
+    pf = ss.planform
     n_pts = len(pts)
     x_le = np.empty(n_pts)
     chord_linear = np.empty(n_pts)
@@ -72,21 +80,4 @@ def place_each(ss: SurfaceSizing, side: str, s: np.ndarray, points: np.ndarray) 
         x_le[i], chord_linear[i], rise[i], _ = pf.at(si)
         chord[i], twist = pf.section_frame(si)
         ct[i], st[i] = math.cos(twist), math.sin(twist)
-    a = spec.twist_axis
-    u = (pts[:, 0] - a) * chord
-    v = pts[:, 1] * chord
-    x = x_le + a * chord_linear + u * ct + v * st
-    n = rise - u * st + v * ct
-    x0 = a * pf.root_chord
-    ci, si_ = math.cos(spec.incidence), math.sin(spec.incidence)
-    xr = x0 + (x - x0) * ci + n * si_
-    nr = -(x - x0) * si_ + n * ci
-    out = np.empty((n_pts, 3))
-    out[:, 0] = ss.apex_x + xr
-    if pf.symmetric:
-        out[:, 1] = s if side == "right" else -s
-        out[:, 2] = ss.apex_z + nr
-    else:
-        out[:, 1] = nr
-        out[:, 2] = ss.apex_z + s
-    return out
+    return _turned(ss, side, s, pts, (x_le, chord_linear, rise, chord, ct, st))
