@@ -5,14 +5,14 @@ would now fail."""
 
 from __future__ import annotations
 
-import hashlib
 import shutil
 from dataclasses import replace
 from pathlib import Path
 
 import pytest
-import yaml
 from designs import demo_document
+from test_cache import _write
+from test_determinism import hashes as _hashes
 
 import geomgen.checks.solid_checks
 import geomgen.checks.tolerances
@@ -23,19 +23,6 @@ from geomgen.errors import GeometryError
 pytestmark = pytest.mark.slow
 
 ONLY = {"fin", "stabilizer-right"}
-
-
-def _hashes(folder: Path) -> dict[str, str]:
-    return {
-        p.relative_to(folder).as_posix(): hashlib.sha256(p.read_bytes()).hexdigest()
-        for p in sorted(folder.rglob("*"))
-        if p.is_file()
-    }
-
-
-def _write(doc: dict, path: Path) -> Path:
-    path.write_text(yaml.safe_dump(doc, sort_keys=False), encoding="utf-8")
-    return path
 
 
 @pytest.fixture

@@ -120,7 +120,7 @@ _SURFACE_ROWS = [
         "twist at mid-panel (ruled panel; linear in span would be)",
         lambda s, f: "; ".join(
             f"{_deg(s.sizing.planform.section_frame(m)[1])} ({_deg(s.sizing.planform.at(m)[3])})"
-            for m in _mid_panels(s.sizing.planform)
+            for m in s.sizing.planform.panel_middles()
         ),
     ),
     ("apex x", lambda s, f: f(s.sizing.apex_x, "length")),
@@ -128,10 +128,6 @@ _SURFACE_ROWS = [
     ("mean t/c", lambda s, f: f"{s.sizing.thickness_ratio:.4f}"),
     ("wetted area (Raymer, on the reference area)", lambda s, f: f(s.sizing.wetted_area, "area")),
 ]
-
-
-def _mid_panels(pf) -> list[float]:
-    return [0.5 * (a.s + b.s) for a, b in zip(pf.stations, pf.stations[1:], strict=False)]
 
 
 _JUNCTION_ROWS = [

@@ -28,11 +28,6 @@ SURFACE_TITLES = {
 }
 
 
-def _mid_panels(pf) -> list[float]:
-    """Spanwise position (m) of the middle of each panel."""
-    return [0.5 * (a.s + b.s) for a, b in zip(pf.stations, pf.stations[1:], strict=False)]
-
-
 #: the twist law every solid, hinge line and template follows (Planform.section_frame)
 TWIST_LAW = (
     "stated twist at the root, each panel end and the tip; between them each panel is a ruled "
@@ -221,7 +216,7 @@ def _surface_data(sl: SurfaceLayout) -> dict[str, Any]:
                 "twist_linear_in_span": _q(pf.at(mid)[3], "angle"),
                 "chord": _q(pf.section_frame(mid)[0], "length"),
             }
-            for mid in _mid_panels(pf)
+            for mid in pf.panel_middles()
         ],
         "corners": corners,
         "hinge_lines": hinges,

@@ -99,6 +99,10 @@ class Planform:
             a.twist + t * (b.twist - a.twist),
         )
 
+    def panel_middles(self) -> list[float]:
+        """Spanwise position (m) of the middle of each panel."""
+        return [0.5 * (a.s + b.s) for a, b in zip(self.stations, self.stations[1:], strict=False)]
+
     def section_frame(self, s: float) -> tuple[float, float]:
         """(chord, twist) of the section the ruled panel has at s: m, rad nose up.
 

@@ -144,19 +144,24 @@ def _control_regions(
     return moving_region, cut_region, aft_region, (p0, p1), (p0, aft)
 
 
+def _hinge_turn(sl: SurfaceLayout, p0: np.ndarray, p1: np.ndarray, angle: float):
+    """(a, b, degrees): the hinge axis pointing right (wing, tails) or up (fin) and the
+    right-hand turn about it that deflects by ``angle`` (rad): positive = trailing edge down
+    (wing, tails), trailing edge left (rudder)."""
+    if sl.key == "vertical_tail":
+        a, b = (p0, p1) if p1[2] > p0[2] else (p1, p0)  # axis pointing up
+        return a, b, -math.degrees(angle)  # right-hand turn about +z moves the TE right
+    a, b = (p0, p1) if p1[1] > p0[1] else (p1, p0)  # axis pointing right
+    return a, b, math.degrees(angle)  # right-hand turn about +y moves the TE down
+
+
 def _deflect(
     shape: cq.Shape, sl: SurfaceLayout, p0: np.ndarray, p1: np.ndarray, angle: float
 ) -> cq.Shape:
-    """Turn a moving part about its hinge axis: positive = trailing edge down (wing, tails),
-    trailing edge left (rudder)."""
+    """Turn a moving part about its hinge axis by ``angle`` (rad, see ``_hinge_turn``)."""
     if angle == 0.0:
         return shape
-    if sl.key == "vertical_tail":
-        a, b = (p0, p1) if p1[2] > p0[2] else (p1, p0)  # axis pointing up
-        degrees = -math.degrees(angle)  # right-hand turn about +z moves the TE right
-    else:
-        a, b = (p0, p1) if p1[1] > p0[1] else (p1, p0)  # axis pointing right
-        degrees = math.degrees(angle)  # right-hand turn about +y moves the TE down
+    a, b, degrees = _hinge_turn(sl, p0, p1, angle)
     return shape.rotate(_vec(a), _vec(b), degrees)
 
 
@@ -168,15 +173,10 @@ def undeflect_points(
     pts = np.asarray(points, dtype=float)
     if angle == 0.0:
         return pts.copy()
-    if sl.key == "vertical_tail":
-        a, b = (p0, p1) if p1[2] > p0[2] else (p1, p0)
-        turn = math.radians(-math.degrees(angle))
-    else:
-        a, b = (p0, p1) if p1[1] > p0[1] else (p1, p0)
-        turn = math.radians(math.degrees(angle))
+    a, b, degrees = _hinge_turn(sl, p0, p1, angle)
     k = _unit(np.asarray(b, dtype=float) - np.asarray(a, dtype=float))
     v = pts - a
-    c, s_ = math.cos(-turn), math.sin(-turn)
+    c, s_ = math.cos(-math.radians(degrees)), math.sin(-math.radians(degrees))
     return a + v * c + np.cross(k, v) * s_ + np.outer(v @ k, k) * (1 - c)
 
 
