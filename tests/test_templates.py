@@ -346,6 +346,11 @@ def test_template_positions_follow_the_spacing():
     expected = sorted({0.0, 0.45 * semi, semi} | {0.6 * k for k in range(1, 9)})
     assert got == pytest.approx(expected, abs=1e-9)
     assert templates.template_name("wing", 0.6) == "wing-y0600"
+    # with the body side among them the spaced ones still run to the tip (they stopped at the
+    # body side: the demo's wing had no spaced templates at all)
+    side = 0.376
+    got = templates.template_positions(ss, 0.6, side)
+    assert got == pytest.approx(sorted([*expected, side]), abs=1e-9)
     assert templates.template_name("vertical_tail", 0.25) == "fin-h0250"
 
 

@@ -201,11 +201,11 @@ def template_positions(
     body side (the first rib wholly outside the fuselage, when the surface is mounted on one)
     and every ``spacing`` from the root. A spaced position within 1 mm of another is dropped."""
     stations = [st.s for st in ss.planform.stations]
+    tip = stations[-1]  # (before the body side joins the list: it is not the tip)
     if body_side is not None and all(abs(body_side - t) >= 1e-3 for t in stations):
         stations.append(body_side)
     extra = []
     if spacing:
-        tip = stations[-1]
         k = 1
         while k * spacing < tip:
             s = k * spacing
