@@ -15,6 +15,7 @@ from pathlib import Path
 
 from geomgen import __version__
 from geomgen.commands.pipeline import run_build, run_size
+from geomgen.commands.workers import check_jobs, default_jobs
 from geomgen.errors import GeomgenError, InputError
 
 
@@ -67,6 +68,13 @@ def _parser() -> argparse.ArgumentParser:
         "--fresh",
         action="store_true",
         help="ignore the cache of solids and the last build's outputs; build everything anew",
+    )
+    build.add_argument(
+        "--jobs",
+        type=int,
+        default=None,
+        help="worker processes for the solids, meshes, checks and drawings (default: one per "
+        "CPU); the outputs are the same bytes whatever the number",
     )
     model = sub.add_parser(
         "model", help="printable wind-tunnel model pieces: STL, 3MF, parts list, checks"
@@ -278,6 +286,7 @@ def _run(args: argparse.Namespace) -> int:
                 only,
                 progress=lambda line: _say(f"geomgen: {line}", flush=True),
                 fresh=args.fresh,
+                jobs=default_jobs() if args.jobs is None else check_jobs(args.jobs),
             )
             _summary(result)
             return 0

@@ -14,6 +14,18 @@ class GeomgenError(Exception):
 
     exit_code = 1
 
+    def __reduce__(self):
+        # raised in a worker process and re-raised in the main one with its key path, part
+        # and operation (the default pickling would call __init__ with the message only)
+        return (_remade, (type(self), self.args, dict(self.__dict__)))
+
+
+def _remade(cls: type, args: tuple, state: dict) -> GeomgenError:
+    err = cls.__new__(cls)
+    err.args = args
+    err.__dict__.update(state)
+    return err
+
 
 class InputError(GeomgenError):
     """Bad design file, bad key or value, unreadable input file (exit code 2).

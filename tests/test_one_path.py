@@ -1,7 +1,8 @@
 """Outputs are a function of the design alone: a clean build, a build whose solids all come from
 the cache, a build resumed after the first one was killed (SIGKILL) once its solids were built,
-a build that finds its cache entries damaged, and a ``--fresh`` build beside a full cache write
-the same bytes in every file.
+a build that finds its cache entries damaged, a ``--fresh`` build beside a full cache, and a
+build on one worker process (``--jobs 1``) against the clean one on two write the same bytes in
+every file.
 
 Every build runs in a fresh interpreter (as a user runs it), so each is its process's first
 STEP export (OCCT numbers assembly occurrences from a per-process counter)."""
@@ -44,6 +45,26 @@ def _build(design: Path, out: Path, *extra: str) -> str:
     return done.stdout
 
 
+def _assert_no_process_writes_into(out: Path, wait: float = 10.0) -> None:
+    """No process left whose command line names ``out`` (a build's workers are forked, so
+    they carry its arguments), within ``wait`` seconds."""
+    import time
+
+    deadline = time.monotonic() + wait
+    while True:
+        left = []
+        for cmdline in Path("/proc").glob("[0-9]*/cmdline"):
+            try:
+                if str(out).encode() in cmdline.read_bytes():
+                    left.append(cmdline.parent.name)
+            except OSError:
+                pass  # ended meanwhile
+        if not left or time.monotonic() > deadline:
+            break
+        time.sleep(0.1)
+    assert not left, f"processes still running for {out}: {left}"
+
+
 def _brep_files(out: Path) -> list[Path]:
     return sorted((out / ".cache").rglob("*.brep"))
 
@@ -63,7 +84,7 @@ def design(tmp_path_factory: pytest.TempPathFactory) -> Path:
 def clean(design: Path, tmp_path_factory: pytest.TempPathFactory) -> Path:
     """A clean build: a fresh output root, so no cache."""
     out = tmp_path_factory.mktemp("clean")
-    stdout = _build(design, out)
+    stdout = _build(design, out, "--jobs", "2")
     assert "reused" not in stdout
     return out / NAME
 
@@ -97,6 +118,7 @@ def test_a_build_resumed_after_a_kill_equals_a_clean_build(design, clean, tmp_pa
         proc.kill()
         proc.wait()
     assert proc.returncode == -signal.SIGKILL
+    _assert_no_process_writes_into(tmp_path)  # its workers died with it
     assert not (tmp_path / NAME).exists()  # killed before its outputs were swapped in
     assert _brep_files(tmp_path)
     stdout = _build(design, tmp_path)
@@ -123,4 +145,10 @@ def test_a_fresh_build_beside_a_full_cache_equals_a_clean_build(design, clean, t
     _build(design, tmp_path)
     stdout = _build(design, tmp_path, "--fresh")  # ignores the cache and the kept outputs
     assert "reused" not in stdout and "unchanged" not in stdout
+    assert_same_files(clean, tmp_path / NAME)
+
+
+def test_a_build_on_one_worker_equals_a_build_on_two(design, clean, tmp_path) -> None:
+    stdout = _build(design, tmp_path, "--jobs", "1")
+    assert "reused" not in stdout
     assert_same_files(clean, tmp_path / NAME)

@@ -341,17 +341,21 @@ def fuselage_checks(
     tessellation_mm: float,
     ruled: bool = False,
     part: str = "fuselage",
+    arrays: tuple | None = None,
 ) -> list[Check]:
     """Checks of the fuselage solid (mm) against its stations (m): the mesh (without the
     zero-area triangles at a pointed end, as written to STL) is watertight and consistently
     wound; the volume agrees with the integral of section areas along x, and the surface area
     with the integral of section perimeters (times the slope factor) plus the flat end faces.
-    ``ruled`` must be what the body was lofted with."""
+    ``ruled`` must be what the body was lofted with; ``arrays``: the body's mesh as written
+    to STL (vertices, faces), made at ``tessellation_mm`` when not given."""
     t = TOLERANCES
     # the exact-geometry integrals first: once meshed, a shape integrates far more slowly
     solid_volume = kernel.volume(shape)
     solid_area = kernel.surface_area(shape)
-    mesh = load_mesh(*meshing.body_mesh_arrays(shape, tessellation_mm))
+    if arrays is None:
+        arrays = meshing.body_mesh_arrays(shape, tessellation_mm)
+    mesh = load_mesh(*arrays)
     lateral = fuselage.wetted_area_by_perimeters(stations, ruled)
     return [
         _flag("mesh is watertight", part, mesh.is_watertight),

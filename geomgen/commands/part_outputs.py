@@ -74,13 +74,14 @@ def _load(folder: Path, names: list[str], stl_dir: Path) -> UnitOutputs:
 
 
 def unit_key(solid_key: str, parts, tessellation: float) -> str:
+    """Cache key of a unit's outputs; ``parts``: (name, smallest local chord mm) pairs."""
     from geomgen.checks.tolerances import TOLERANCES
     from geomgen.store.cache import key_of
 
     return key_of(
         "unit outputs",
         solid_key,
-        [(p.name, p.local_chord_min, tessellation) for p in parts],
+        [(name, chord_min, tessellation) for name, chord_min in parts],
         TOLERANCES,
         source_digest(),
     )
@@ -88,18 +89,20 @@ def unit_key(solid_key: str, parts, tessellation: float) -> str:
 
 def make_unit(build, unit, parts, stl_dir: Path, dirs: tuple) -> UnitOutputs:
     """Write the unit's STL files and run its checks (``unit``: a SideBuild, or None for
-    the fuselage)."""
+    the fuselage; ``build``: a Build holding at least the unit's side and parts)."""
     from geomgen.checks import solid_checks as checks
     from geomgen.solids import kernel, meshing
 
     d = build.layout.sizing.design
     stl_checks: list = []
     meshes = {}
+    body_arrays = None
     for p in parts:
         deflection = d.solids.tessellation * p.local_chord_min
         stl = stl_dir / f"{p.name}.stl"
-        if unit is None:  # pointed ends: the writer drops the tips' zero-area triangles
-            meshing.write_body_stl(p.shape, stl, deflection)
+        if unit is None:  # pointed ends: the mesh without the tips' zero-area triangles
+            body_arrays = meshing.body_mesh_arrays(p.shape, deflection)
+            meshing.write_stl_arrays(*body_arrays, stl, stl.stem)
         else:
             meshing.write_stl(p.shape, stl, deflection)
         part_checks, meshes[p.name] = checks.stl_checks(p.name, stl, kernel.volume(p.shape))
@@ -113,20 +116,22 @@ def make_unit(build, unit, parts, stl_dir: Path, dirs: tuple) -> UnitOutputs:
     body = parts[0]
     position = checks.position_checks(replace(build, sides=()), meshes, dirs)
     body_checks = checks.fuselage_checks(
-        body.shape, build.layout.body, d.solids.tessellation * body.local_chord_min
+        body.shape,
+        build.layout.body,
+        d.solids.tessellation * body.local_chord_min,
+        arrays=body_arrays,  # the mesh just written: the body is meshed once
     )
     return UnitOutputs(stl_checks, meshes, [], position, body_checks)
 
 
-def unit_outputs(build, unit, parts, stl_dir: Path, dirs: tuple, store, solid_key: str):
-    """The unit's outputs from the cache when its key matches, else made (and cached)."""
-    if store is None or not solid_key:
-        return make_unit(build, unit, parts, stl_dir, dirs), False
+def make_and_save(build, unit, parts, stl_dir: Path, dirs: tuple, store, key: str) -> Path:
+    """Make a unit's outputs and save them as the cache entry ``key``; its folder."""
     names = [p.name for p in parts]
-    key = unit_key(solid_key, parts, build.layout.sizing.design.solids.tessellation)
-    entry = store.get(key, f"outputs of {names[0]}")
-    if entry is not None:
-        return _load(entry, names, stl_dir), True
     out = make_unit(build, unit, parts, stl_dir, dirs)
-    store.put(key, lambda folder: _save(folder, names, out, stl_dir))
-    return out, False
+    return store.put(key, lambda folder: _save(folder, names, out, stl_dir))
+
+
+def load_unit(entry: Path, names: list[str], stl_dir: Path) -> UnitOutputs:
+    """A unit's outputs read back from its entry, its STL files copied into ``stl_dir``: a
+    unit just made is used as read back, as a cached one is, so both give the same bytes."""
+    return _load(entry, names, stl_dir)

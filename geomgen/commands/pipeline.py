@@ -32,44 +32,19 @@ def _size(design_path: Path):
     return d, mount(lay_out(size(d, dirs), dirs), dirs), dirs
 
 
-def _write_reports(folder: OutputFolder, layout, system: str) -> None:
-    from geomgen.outputs.markdown_report import to_markdown
-    from geomgen.outputs.report import to_json
-
-    folder.write_text("report.json", to_json(layout))
-    folder.write_text("report.md", to_markdown(layout, system))
-
-
-def _write_drawings(folder: OutputFolder, layout, system: str, dirs: tuple) -> str:
-    """Three-view (SVG, PNG) and the shop DXF files; returns the SVG text for report.html."""
-    from geomgen.outputs.three_view import three_view
-
-    svg = folder.path("three-view.svg")
-    three_view(layout, svg, folder.path("three-view.png"), system)
-    _write_shop_files(folder, layout, dirs)
-    return svg.read_text(encoding="utf-8")
-
-
-def _write_shop_files(folder: OutputFolder, layout, dirs: tuple) -> None:
-    """DXF files 1:1 in mm: plan view, one planform per surface, section templates."""
-    from geomgen.outputs.dxf import write_plan_dxf, write_planform_dxfs, write_template_dxf
-
-    write_plan_dxf(layout, folder.path("dxf/plan.dxf"))
-    write_planform_dxfs(layout, folder.path("dxf/plan.dxf").parent)
-    write_template_dxf(layout, folder.path("dxf/templates.dxf"), dirs)
-
-
 def run_size(design_path: Path, out_root: Path, units: str | None, drawings: bool = True) -> Path:
     """Sizing and layout of one design; writes report.json and report.md, and unless
     ``drawings`` is False the three-view, the DXF files and report.html. Returns the folder."""
     d, layout, dirs = _size(design_path)
     system = units or d.units
+    from geomgen.commands.build_tasks import write_drawings, write_reports
+
     with FolderLock(out_root / d.name, "size"), OutputFolder(out_root / d.name) as folder:
-        _write_reports(folder, layout, system)
+        write_reports(folder, layout, system)
         if drawings:
             from geomgen.outputs.html_report import write_html
 
-            svg = _write_drawings(folder, layout, system, dirs)
+            svg = write_drawings(folder, layout, system, dirs)
             write_html(layout, folder.path("report.html"), svg=svg, units=system)
     return out_root / d.name
 
@@ -98,6 +73,7 @@ def run_build(
     only: set[str] | None = None,
     progress: Callable[[str], None] = lambda _: None,
     fresh: bool = False,
+    jobs: int = 1,
 ) -> BuildResult:
     """Size, lay out, build the solids, export STEP and STL, check everything. Solids come
     from the cache under ``out_root/.cache`` when their inputs are unchanged, and a build
@@ -121,10 +97,12 @@ def run_build(
                 path="--only",
             )
     with FolderLock(out_root / d.name, "build"):
-        return _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, stage)
+        return _build_locked(
+            design_path, out_root, units, only, fresh, jobs, d, layout, dirs, stage
+        )
 
 
-def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, stage):
+def _build_locked(design_path, out_root, units, only, fresh, jobs, d, layout, dirs, stage):
     """run_build past sizing, under the lock of its output folder."""
     from geomgen.store.cache import Cache, key_of
     from geomgen.store.stamp import output_time
@@ -142,56 +120,74 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
         stage("nothing changed since the last build: every output kept")
         return _kept_result(target)
     from geomgen.checks import solid_checks as checks
-    from geomgen.solids import assembly, kernel, step
+    from geomgen.commands import build_tasks as bt
+    from geomgen.commands.part_outputs import load_unit, unit_key
+    from geomgen.commands.workers import Tasks
+    from geomgen.solids import assembly, kernel
 
     store = Cache(out_root / ".cache", enabled=not fresh)
-    built = assembly.build(layout, dirs, only, store)
-    parts = built.parts
-    if store.hits:
-        stage(f"reused {len(store.hits)} solid(s) from the cache: {', '.join(store.hits)}")
-    body = next((p for p in parts if p.name == "fuselage"), None)
-    stage(f"built {len(parts)} solids")
+    units_store = Cache(out_root / ".cache", enabled=not fresh)  # its own hit list
     results: list = []
     part_rows = []
     system = units or d.units
+    tessellation = d.solids.tessellation
     with OutputFolder(out_root / d.name) as folder:
-        _write_reports(folder, layout, system)
-        svg = _write_drawings(folder, layout, system, dirs)
-        from geomgen.outputs.template_pdf import write_template_pdf
+        ctx = bt.BuildContext(layout, dirs, system, folder, out_root / ".cache", output_time(d))
+        # the workers are forked here, before this process does any kernel work
+        with Tasks(jobs, ctx) as tasks:
+            later: dict = {}
 
-        write_template_pdf(layout, folder.path("templates.pdf"), dirs)
-        stage("wrote the reports, drawings, DXF files and 1:1 templates")
-        step_path = folder.path(f"{d.name}.step")
-        from geomgen.store.stamp import output_time
+            def make_missing(planned, missing) -> None:
+                """Queue the missing solids, then everything that needs only them or nothing:
+                each unit's STL files and checks, the STEP file, the drawings; wait for the
+                solids."""
+                made = {}
+                for u in missing:
+                    after = [made[u.mirror_of]] if u.mirror_of in made else []
+                    made[u.key] = tasks.add(bt.solid_task, u, after=after, priority=0)
+                later["units"] = []
+                for u in planned:
+                    key = unit_key(u.key, assembly.part_chords(layout, u), tessellation)
+                    entry = units_store.get(key, f"outputs of {u.name}")
+                    task = None
+                    if entry is None:
+                        after = [made[u.key]] if u.key in made else []
+                        # the fuselage's and the wing's take longest
+                        first = u.surface in (None, "wing")
+                        task = tasks.add(bt.unit_task, u, key, after=after, priority=2 - first)
+                    later["units"].append((u, key, task))
+                later["step"] = tasks.add(
+                    bt.step_task, planned, d.name, after=list(made.values()), priority=1
+                )
+                later["drawings"] = tasks.add(bt.drawings_task, priority=2)
+                later["templates"] = tasks.add(bt.templates_task, priority=2)
+                for task in made.values():
+                    tasks.result(task)
 
-        step.write_step(parts, step_path, d.name, when=output_time(d))
-        stage(f"wrote {step_path.name}")
-        # per unit (a surface side, the fuselage): STL files, meshes and checks, cached
-        from geomgen.commands.part_outputs import unit_outputs
-
-        units_store = Cache(out_root / ".cache", enabled=not fresh)  # its own hit list
-        stl_dir = folder.path("stl/x").parent
-        units = [
-            (sb, [p for p in parts if p.surface == sb.surface.key and p.side == sb.side])
-            for sb in built.sides
-        ]
-        if body is not None:
-            units.append((None, [body]))
-        made, reused = [], []
-        for sb, unit_parts in units:
-            if sb is None:
-                solid_key = key_of("fuselage", layout.body)
-            else:
-                solid_key = assembly.side_key(sb.surface, sb.side, layout, dirs)
-            out, hit = unit_outputs(built, sb, unit_parts, stl_dir, dirs, units_store, solid_key)
-            made.append(out)
-            if hit:
-                reused.append(unit_parts[0].name)
-        meshes = {n: m for out in made for n, m in out.meshes.items()}
+            bt.write_reports(folder, layout, system)
+            built = assembly.build(layout, dirs, only, store, make_missing)
+            parts = built.parts
+            if store.hits:
+                stage(f"reused {len(store.hits)} solid(s) from the cache: {', '.join(store.hits)}")
+            stage(f"built {len(parts)} solids")
+            svg = tasks.result(later["drawings"])
+            tasks.result(later["templates"])
+            stage("wrote the reports, drawings, DXF files and 1:1 templates")
+            read_back = tasks.result(later["step"])
+            stage(f"wrote {d.name}.step")
+            # per unit (a surface side, the fuselage): STL files, meshes and checks
+            stl_dir = ctx.stl_dir
+            made_units, reused = [], []
+            for u, key, task in later["units"]:
+                names = [n for n, _ in assembly.part_chords(layout, u)]
+                if task is None:
+                    reused.append(u.name)
+                else:
+                    tasks.result(task)
+                made_units.append(load_unit(units_store.folder(key), names, stl_dir))
+        meshes = {n: m for out in made_units for n, m in out.meshes.items()}
         for p in parts:
-            part_rows.append(
-                (p.name, kernel.volume(p.shape), d.solids.tessellation * p.local_chord_min)
-            )
+            part_rows.append((p.name, kernel.volume(p.shape), tessellation * p.local_chord_min))
         stage(
             f"wrote {len(parts)} STL files"
             + (
@@ -203,15 +199,11 @@ def _build_locked(design_path, out_root, units, only, fresh, d, layout, dirs, st
         # the checks in the order of a clean build: the meshes, each side against the
         # sizing, every part's position, then the checks between parts
         for what in ("stl_checks", "surface_checks", "position_checks"):
-            for out in made:
+            for out in made_units:
                 results += getattr(out, what)
         results += checks.junction_checks(built, meshes)
-        for out in made:
+        for out in made_units:
             results += out.body_checks
-        from geomgen.checks.tolerances import TOLERANCES
-
-        expected = {p.name: kernel.volume(p.shape) for p in parts}
-        read_back = step.read_step(step_path, expected, TOLERANCES.step_readback)
         results += checks.step_checks(read_back, parts)
         stage(f"ran {len(results)} checks")
         failed = tuple(f"{c.part}: {c.name}" for c in results if not c.passed)

@@ -10,8 +10,8 @@ from __future__ import annotations
 
 import tempfile
 from collections.abc import Callable
+from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
 
 import cadquery as cq
 import numpy as np
@@ -24,86 +24,189 @@ from geomgen.solids.kernel import _VOLUMES, MM, volume
 from geomgen.solids.records import Build, ControlBuild, Part, SideBuild
 
 
-def build(layout: Layout, dirs: tuple = (), only: set[str] | None = None, store=None) -> Build:
-    """Loft every surface side, cut its control surfaces free, deflect them, and loft the
-    fuselage when there is one; ``only`` limits the build to the named parts' surfaces (part
-    names as in the report)."""
-    d = layout.sizing.design
-    points, te = d.solids.section_points, d.solids.te_thickness
-    sides: list[SideBuild] = []
-    parts: list[Part] = []
+@dataclass(frozen=True)
+class SolidUnit:
+    """One entry of the build cache a build needs: a surface side (its fixed part and its
+    control surfaces) or the fuselage."""
+
+    surface: str | None  # surface key; None for the fuselage
+    side: str  # right | left | centre
+    key: str  # cache key (exactly its inputs and the versions)
+    name: str  # the fixed part's name, or "fuselage"
+    mirror_of: str | None = None  # key of the right side a left side is the mirror image of
+
+
+def plan(layout: Layout, dirs: tuple = (), only: set[str] | None = None) -> tuple[SolidUnit, ...]:
+    """The solids a build of ``layout`` needs, in build order; ``only`` limits it to the
+    named parts' surfaces (part names as in the report). A left side whose right side is in
+    the same build is that side's mirror image."""
+    units: list[SolidUnit] = []
     for sl in layout.surfaces:
-        base = PART_NAMES[sl.key]
         for side in sl.sides:
             names = {fixed_part_name(sl.key, side)} | {
                 c.name for c in sl.controls if c.side == side
             }
             if only is not None and not names & only:
                 continue
-            right = next((b for b in sides if b.surface is sl and b.side == "right"), None)
-            key = side_key(sl, side, layout, dirs) if store is not None else ""
-            entry = store.get(key, fixed_part_name(sl.key, side)) if store is not None else None
-            if entry is not None:
-                sb = load_side(sl, side, entry)
-            else:
-                if side == "left" and right is not None:
-                    made = mirror_side(right)
-                else:
-                    made = build_side(sl, side, points, te, dirs)
-                # one path: a side just built is used as read back from its BREP files, as a
-                # cached one is, so fresh, cached and resumed builds mesh the same solids
-                sb = _through_brep(
-                    store,
-                    key,
-                    lambda folder, m=made: save_side(m, folder),
-                    lambda folder, sl=sl, side=side: load_side(sl, side, folder),
+            right = next((u for u in units if u.surface == sl.key and u.side == "right"), None)
+            units.append(
+                SolidUnit(
+                    sl.key,
+                    side,
+                    side_key(sl, side, layout, dirs),
+                    fixed_part_name(sl.key, side),
+                    right.key if side == "left" and right is not None else None,
                 )
-            sides.append(sb)
-            chords = [st.chord for st in sl.sizing.planform.stations]
-            fixed_name = base if side == "centre" else f"{base}-{side}"
-            parts.append(
-                Part(fixed_name, base, sl.key, side, sb.fixed, False, 0.0, min(chords) * MM)
             )
-            for cb in sb.controls:
-                c = cb.layout
-                spec = next(x for x in sl.sizing.spec.controls if x.kind == c.kind)
-                lo, hi = sorted((c.s_start, c.s_end))
-                chord_min = min(sl.sizing.planform.at(lo)[1], sl.sizing.planform.at(hi)[1])
-                parts.append(
-                    Part(
-                        c.name,
-                        c.kind,
-                        sl.key,
-                        side,
-                        cb.moving,
-                        True,
-                        spec.deflection,
-                        chord_min * MM,
-                    )
-                )
     if layout.body is not None and (only is None or "fuselage" in only):
-        body = layout.body
-        size_min = min(max(st.width for st in body), max(st.height for st in body))
-        shape = None
-        if store is not None:
-            from geomgen.store.cache import key_of
+        from geomgen.store.cache import key_of
 
-            key = key_of("fuselage", body)
-            entry = store.get(key, "fuselage")
-            if entry is not None:
-                shape = _load_shape(entry, "fuselage")
-        if shape is None:
-            made = build_fuselage(body)
-            shape = _through_brep(
-                store,
-                key if store is not None else "",
-                lambda folder: _save_shape(made, folder, "fuselage"),
-                lambda folder: _load_shape(folder, "fuselage"),
+        units.append(SolidUnit(None, "centre", key_of("fuselage", layout.body), "fuselage"))
+    return tuple(units)
+
+
+def make_entry(layout: Layout, unit: SolidUnit, store, dirs: tuple = ()) -> Path:
+    """Build one unit's solids and save them as the cache entry ``unit.key`` (a left side
+    that mirrors its right side reads that side's entry, which must be there); returns the
+    entry's folder."""
+    d = layout.sizing.design
+    if unit.surface is None:
+        made = build_fuselage(layout.body)
+        return store.put(unit.key, lambda folder: _save_shape(made, folder, "fuselage"))
+    sl = _surface(layout, unit.surface)
+    if unit.mirror_of is not None:
+        # the right side as read back from its entry, as a cached one would be
+        side = mirror_side(load_side(sl, "right", store.folder(unit.mirror_of)))
+    else:
+        side = build_side(sl, unit.side, d.solids.section_points, d.solids.te_thickness, dirs)
+    return store.put(unit.key, lambda folder: save_side(side, folder))
+
+
+def _surface(layout: Layout, key: str) -> SurfaceLayout:
+    return next(sl for sl in layout.surfaces if sl.key == key)
+
+
+def part_chords(layout: Layout, unit: SolidUnit) -> list[tuple[str, float]]:
+    """Each part of a unit with the smallest local chord over its span (mm; the fuselage:
+    the smaller of its largest width and height), in the unit's part order."""
+    if unit.surface is None:
+        body = layout.body
+        return [("fuselage", min(max(st.width for st in body), max(st.height for st in body)) * MM)]
+    sl = _surface(layout, unit.surface)
+    chords = [st.chord for st in sl.sizing.planform.stations]
+    out = [(fixed_part_name(sl.key, unit.side), min(chords) * MM)]
+    for c in sl.controls:
+        if c.side == unit.side:
+            lo, hi = sorted((c.s_start, c.s_end))
+            out.append(
+                (c.name, min(sl.sizing.planform.at(lo)[1], sl.sizing.planform.at(hi)[1]) * MM)
             )
-        parts.append(
-            Part("fuselage", "fuselage", "fuselage", "centre", shape, False, 0.0, size_min * MM)
+    return out
+
+
+def unit_parts(layout: Layout, unit: SolidUnit, entry: Path) -> tuple[SideBuild | None, list]:
+    """One unit read back from its cache entry: its SideBuild (None for the fuselage) and
+    its ``Part`` records."""
+    chord_min = dict(part_chords(layout, unit))
+    if unit.surface is None:
+        shape = _load_shape(entry, "fuselage")
+        return None, [
+            Part(
+                "fuselage",
+                "fuselage",
+                "fuselage",
+                "centre",
+                shape,
+                False,
+                0.0,
+                chord_min["fuselage"],
+            )
+        ]
+    sl = _surface(layout, unit.surface)
+    sb = load_side(sl, unit.side, entry)
+    fixed_name = fixed_part_name(sl.key, unit.side)
+    parts = [
+        Part(
+            fixed_name,
+            PART_NAMES[sl.key],
+            sl.key,
+            unit.side,
+            sb.fixed,
+            False,
+            0.0,
+            chord_min[fixed_name],
         )
+    ]
+    for cb in sb.controls:
+        c = cb.layout
+        spec = next(x for x in sl.sizing.spec.controls if x.kind == c.kind)
+        parts.append(
+            Part(
+                c.name,
+                c.kind,
+                sl.key,
+                unit.side,
+                cb.moving,
+                True,
+                spec.deflection,
+                chord_min[c.name],
+            )
+        )
+    return sb, parts
+
+
+def assemble(layout: Layout, units: tuple[SolidUnit, ...], entries: dict[str, Path]) -> Build:
+    """The Build of ``units`` read back from their cache entries (key -> folder)."""
+    sides: list[SideBuild] = []
+    parts: list[Part] = []
+    for unit in units:
+        sb, unit_part_list = unit_parts(layout, unit, entries[unit.key])
+        if sb is not None:
+            sides.append(sb)
+        parts += unit_part_list
     return Build(layout=layout, sides=tuple(sides), parts=tuple(parts))
+
+
+def build(
+    layout: Layout,
+    dirs: tuple = (),
+    only: set[str] | None = None,
+    store=None,
+    make_missing: Callable[[tuple[SolidUnit, ...], tuple[SolidUnit, ...]], None] | None = None,
+) -> Build:
+    """Loft every surface side, cut its control surfaces free, deflect them, and loft the
+    fuselage when there is one; ``only`` limits the build to the named parts' surfaces (part
+    names as in the report). Units found in ``store`` are read back; the others are made
+    (in order, or by ``make_missing(units, missing)``, which must leave their entries in
+    ``store``). One path: a solid just made is used as read back from its BREP files, as a
+    cached one is, so fresh, cached, resumed and parallel builds mesh the same solids.
+    Without a store the entries go to a temporary folder."""
+    if store is None:
+        from geomgen.store.cache import Cache
+
+        with tempfile.TemporaryDirectory(prefix="geomgen-brep-") as tmp:
+            return _build(layout, dirs, only, Cache(Path(tmp), enabled=False), make_missing)
+    return _build(layout, dirs, only, store, make_missing)
+
+
+def _build(layout, dirs, only, store, make_missing) -> Build:
+    units = plan(layout, dirs, only)
+    entries: dict[str, Path] = {}
+    missing = []
+    for unit in units:
+        entry = store.get(unit.key, unit.name)
+        if entry is None:
+            missing.append(unit)
+        else:
+            entries[unit.key] = entry
+    if make_missing is not None:
+        make_missing(units, tuple(missing))
+    else:
+        for unit in missing:
+            make_entry(layout, unit, store, dirs)
+    for unit in missing:
+        entries[unit.key] = store.folder(unit.key)
+    return assemble(layout, units, entries)
 
 
 # --- the build cache: sides stored as BREP files with what the checks need -----------------
@@ -118,16 +221,6 @@ def side_key(sl: SurfaceLayout, side: str, layout: Layout, dirs: tuple) -> str:
     names = sorted({n for st in sl.sizing.planform.stations for n in st.airfoil[:2]})
     sections = [(n, airfoils.load(n, dirs).upper, airfoils.load(n, dirs).lower) for n in names]
     return key_of("surface side", side, sl, layout.sizing.design.solids, sections)
-
-
-def _through_brep(store, key: str, save: Callable[[Path], None], load: Callable[[Path], Any]):
-    """Save what was just built (into the cache entry ``key``, or a temporary folder without
-    a cache) and return it as read back: the solids a cache hit would give, to the bit."""
-    if store is not None:
-        return load(store.put(key, save))
-    with tempfile.TemporaryDirectory(prefix="geomgen-brep-") as tmp:
-        save(Path(tmp))
-        return load(Path(tmp))
 
 
 def _save_shape(shape: cq.Shape, folder: Path, name: str) -> None:

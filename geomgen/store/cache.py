@@ -143,8 +143,15 @@ class Cache:
                 encoding="utf-8",
             )
             if final.exists():
-                shutil.rmtree(final)
-            os.replace(temp, final)
+                shutil.rmtree(final, ignore_errors=True)
+            try:
+                os.replace(temp, final)
+            except OSError:
+                # another process (a sweep's other worker) made the same entry meanwhile:
+                # same key, same inputs, so an intact one is as good as ours
+                if not (final.is_dir() and intact(final)):
+                    raise
+                shutil.rmtree(temp, ignore_errors=True)
         except OSError as err:  # a full disk: one line (exit 1), no half-made entry
             shutil.rmtree(temp, ignore_errors=True)
             raise cannot_write(err, self.root, "the build cache") from None
