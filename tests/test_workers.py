@@ -158,3 +158,17 @@ def test_jobs_limits() -> None:
     for bad in (0, -1, 65):
         with pytest.raises(InputError, match=r"--jobs: must be 1 to 64"):
             check_jobs(bad)
+
+
+def test_build_refuses_a_bad_jobs_count_in_one_line_before_any_work(tmp_path, capsys) -> None:
+    from designs import DEMO
+
+    from geomgen import cli
+
+    out = tmp_path / "out"
+    code = cli.main(["build", str(DEMO), "--jobs", "0", "--out", str(out)])
+    assert code == 2
+    assert capsys.readouterr().err.strip().splitlines() == [
+        "geomgen: error: --jobs: must be 1 to 64 (got 0)"
+    ]
+    assert not out.exists()  # nothing written
