@@ -275,3 +275,31 @@ def test_feasibility_map_refusals(tmp_path, plot, words):
     assert "--plot" in stderr and words in stderr
     assert len(stderr.strip().splitlines()) == 1
     assert not (tmp_path / "veyra-t2-sweep").exists()  # refused before anything is written
+
+
+def _entries(cache: Path) -> dict[str, int]:
+    """Every cache entry (folder name) with the inode of its folder: an entry made again is a
+    new folder (cache.put renames a fresh one into place)."""
+    return {p.name: p.stat().st_ino for p in cache.glob("??/*") if p.is_dir()}
+
+
+@pytest.mark.slow
+def test_built_variants_share_the_cache_and_a_new_sweep_keeps_it(tmp_path):
+    # the template spacing changes drawings only: every variant has the same solids, which
+    # the first variant builds and the others (and the next sweep's) take from the cache
+    code, stdout, _ = sweep(tmp_path, "--build", "--vary", "drawings.template_spacing=500,700 mm")
+    assert code == 0, stdout
+    folder = tmp_path / "veyra-t2-sweep"
+    got = rows(tmp_path)
+    assert [r["status"] for r in got] == ["ok", "ok"]
+    assert got[0]["parts_volume_mm3"] == got[1]["parts_volume_mm3"]
+    first = _entries(folder / ".cache")
+    # 6 solid entries (wing and stabilizer each side, fin, fuselage) and their 6 unit entries
+    assert len(first) == 12
+    code, stdout, _ = sweep(tmp_path, "--build", "--vary", "drawings.template_spacing=800 mm")
+    assert code == 0, stdout
+    assert _entries(folder / ".cache") == first  # the same entries, none made again
+    assert sorted(p.name for p in folder.iterdir() if not p.name.startswith(".")) == [
+        "summary.csv",
+        "veyra-t2-v001",
+    ]  # the previous sweep's variants are gone

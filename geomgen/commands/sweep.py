@@ -202,8 +202,17 @@ def run_sweep(
     with FolderLock(folder, "sweep"):
         plan = plan_variants(document, design_path, varies, folder)
         try:
-            if folder.exists():  # a previous sweep of this design: replaced as a whole
-                shutil.rmtree(folder)
+            if folder.exists():
+                # a previous sweep of this design: replaced, all but its build cache (shared by
+                # the variants, keyed by exactly their inputs: the surfaces a new sweep shares
+                # with the old one are not built again)
+                for old in folder.iterdir():
+                    if old.name == ".cache" and old.is_dir() and not old.is_symlink():
+                        continue
+                    if old.is_dir() and not old.is_symlink():
+                        shutil.rmtree(old)
+                    else:
+                        old.unlink()
             for variant, doc in plan:
                 variant.design_path.parent.mkdir(parents=True, exist_ok=True)
                 variant.design_path.write_text(
