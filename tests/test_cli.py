@@ -236,11 +236,11 @@ def test_size_does_not_import_the_cad_kernel(tmp_path: Path) -> None:
 
 def test_size_without_drawings_imports_only_what_it_uses(tmp_path: Path) -> None:
     # the demo's units are all in the table of common units: pint is not needed; no drawing
-    # is made: neither matplotlib nor ezdxf
+    # is made: neither matplotlib, reportlab nor ezdxf
     code = (
         "import sys; from geomgen.cli import main; "
         f"assert main(['size', {str(DEMO)!r}, '--out', {str(tmp_path)!r}, '--no-drawings']) == 0; "
-        "unused = [m for m in ('pint', 'matplotlib', 'ezdxf', 'cadquery', 'trimesh') "
+        "unused = [m for m in ('pint', 'matplotlib', 'reportlab', 'ezdxf', 'cadquery', 'trimesh') "
         "if m in sys.modules]; assert not unused, unused"
     )
     result = subprocess.run(

@@ -4,7 +4,7 @@ overlap, alignment crosses in the overlaps, a 100 mm check bar and the caution o
 
 Drawing coordinates are those of the template (mm, see :mod:`geomgen.outputs.templates`); page
 coordinates are mm from the lower-left corner of the paper. Only :func:`write_template_pdf`
-imports matplotlib, and only when it is called.
+imports the PDF library (reportlab), and only when it is called.
 """
 
 from __future__ import annotations
@@ -131,53 +131,42 @@ def alignment_crosses(
 
 
 def clip_polyline(points, box: tuple[float, float, float, float]) -> list[np.ndarray]:
-    """Pieces of a polyline inside the box (x0, y0, x1, y1), by Liang-Barsky per segment."""
+    """Pieces of a polyline inside the box (x0, y0, x1, y1), by Liang-Barsky per segment (all
+    segments at once). A piece runs on over a vertex its segment reaches unclipped."""
     p = np.asarray(points, dtype=float)
-    pieces: list[list[np.ndarray]] = []
-    current: list[np.ndarray] = []
-    for a, b in zip(p[:-1], p[1:], strict=True):
-        seg = _clip_segment(a, b, box)
-        if seg is None:
-            if current:
-                pieces.append(current)
-                current = []
-            continue
-        a2, b2 = seg
-        if current and np.allclose(current[-1], a2, atol=1e-12):
-            current.append(b2)
-        else:
-            if current:
-                pieces.append(current)
-            current = [a2, b2]
-        if not np.allclose(b2, b, atol=1e-12):
-            pieces.append(current)
-            current = []
-    if current:
-        pieces.append(current)
-    return [np.array(c) for c in pieces]
-
-
-def _clip_segment(a: np.ndarray, b: np.ndarray, box) -> tuple[np.ndarray, np.ndarray] | None:
+    if len(p) < 2:
+        return []
+    lo, hi = p.min(axis=0), p.max(axis=0)
+    if lo[0] >= box[0] and lo[1] >= box[1] and hi[0] <= box[2] and hi[1] <= box[3]:
+        return [p.copy()]  # all inside: every segment whole, one piece
+    gap = 1e-6  # clear of the box by more than this: every segment's t0 > 1 or t1 < 0
+    if lo[0] > box[2] + gap or lo[1] > box[3] + gap or hi[0] < box[0] - gap or hi[1] < box[1] - gap:
+        return []
+    a, b = p[:-1], p[1:]
     d = b - a
-    t0, t1 = 0.0, 1.0
-    for q, r in (
-        (-d[0], a[0] - box[0]),
-        (d[0], box[2] - a[0]),
-        (-d[1], a[1] - box[1]),
-        (d[1], box[3] - a[1]),
-    ):
-        if q == 0.0:
-            if r < 0.0:
-                return None
-            continue
+    # the four edges as q t <= r (left, right, bottom, top)
+    q = np.stack([-d[:, 0], d[:, 0], -d[:, 1], d[:, 1]], axis=1)
+    r = np.stack([a[:, 0] - box[0], box[2] - a[:, 0], a[:, 1] - box[1], box[3] - a[:, 1]], axis=1)
+    with np.errstate(divide="ignore", invalid="ignore"):
         t = r / q
-        if q < 0.0:
-            t0 = max(t0, t)
-        else:
-            t1 = min(t1, t)
-        if t0 > t1:
-            return None
-    return (a + t0 * d if t0 > 0.0 else a.copy(), a + t1 * d if t1 < 1.0 else b.copy())
+    t0 = np.max(np.where(q < 0.0, t, 0.0), axis=1)
+    t1 = np.min(np.where(q > 0.0, t, 1.0), axis=1)
+    kept = ~np.any((q == 0.0) & (r < 0.0), axis=1) & (t0 <= t1)
+    a2 = np.where((t0 > 0.0)[:, None], a + t0[:, None] * d, a)
+    b2 = np.where((t1 < 1.0)[:, None], a + t1[:, None] * d, b)
+    # a segment goes on from the one before if that one was kept and ends (near enough,
+    # np.allclose's tolerances) unclipped at the point where this one starts
+    whole_end = kept & _close(b2, b)
+    joins = np.zeros(len(a), dtype=bool)
+    joins[1:] = kept[1:] & whole_end[:-1] & _close(b2[:-1], a2[1:])
+    idx = np.flatnonzero(kept)
+    starts = np.flatnonzero(~joins[idx])
+    return [np.vstack([a2[seg[:1]], b2[seg]]) for seg in np.split(idx, starts[1:]) if len(seg)]
+
+
+def _close(u: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """Row-wise np.allclose(u_i, v_i, atol=1e-12) (its default rtol 1e-5), finite input."""
+    return np.all(np.abs(u - v) <= 1e-12 + 1e-5 * np.abs(v), axis=1)
 
 
 # --- PDF ----------------------------------------------------------------------------------------
@@ -195,15 +184,19 @@ _WIDTHS_PT = {
     "centreline": 0.35,
     "centre": 0.4,
 }
-_STYLES = {
-    "chord": (0, (6, 2, 1, 2)),
-    "hinge": (0, (4, 2)),
-    "spar": (0, (1.5, 1.5)),
-    "waterline": (0, (6, 2, 1, 2)),
-    "centreline": (0, (10, 2, 2, 2)),
+#: Dash patterns, in line widths (on, off, ...); other kinds are solid.
+_DASHES = {
+    "chord": (6, 2, 1, 2),
+    "hinge": (4, 2),
+    "spar": (1.5, 1.5),
+    "waterline": (6, 2, 1, 2),
+    "centreline": (10, 2, 2, 2),
 }
-_COLOURS = {"hinge": "#c00000", "spar": "#0040c0"}
+#: Colours (RGB, 0..1) of lines and notes; others are black.
+_COLOURS = {"hinge": (0xC0 / 255, 0.0, 0.0), "spar": (0.0, 0x40 / 255, 0xC0 / 255)}
 _CROSS = 5.0  # half-length of an alignment cross's arms (mm)
+#: One of the 14 standard PDF fonts (PDF 1.7, 9.6.2.2): every reader has it, nothing embedded.
+_FONT = "Helvetica"
 
 
 def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Path:
@@ -214,9 +207,10 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     ``OVERLAP``; crosses in each overlap, labelled with their drawing position, show on both
     pages. Every page carries a 100 mm check bar, its label (template, tile i of n) and the
     caution. Output is deterministic: the PDF's creation and modification dates are
-    :func:`geomgen.store.stamp.output_time` of the design, never the clock."""
-    import matplotlib
-    from matplotlib.backends.backend_pdf import PdfPages
+    :func:`geomgen.store.stamp.output_time` of the design, never the clock. Drawn with
+    reportlab, imported here only."""
+    from reportlab import rl_config
+    from reportlab.pdfgen.canvas import Canvas
 
     path = Path(path)
     design = layout.sizing.design
@@ -230,32 +224,42 @@ def write_template_pdf(layout: Layout, path: str | Path, dirs: tuple = ()) -> Pa
     for t in templates:
         ext = t.extent(labels=False, pad=4.0)  # the page label names the template
         page_tiles = tiles(ext, rw, rh, OVERLAP)
-        plans.append((t, ext, page_tiles, alignment_crosses(t, page_tiles, OVERLAP)))
+        strokes = [
+            (s.kind, np.array(s.points + ((s.points[0],) if s.closed else ()), dtype=float))
+            for s in t.strokes
+        ]
+        plans.append((t, strokes, page_tiles, alignment_crosses(t, page_tiles, OVERLAP)))
     sheets = sum(len(p[2]) for p in plans)
-    rc = {
-        "pdf.use14corefonts": True,
-        "pdf.compression": 6,
-        "path.simplify": False,
-        "lines.solid_capstyle": "butt",
-        "lines.dash_capstyle": "butt",
-    }
-    metadata = {
-        "Title": f"{design.title}: {'section and former' if formers else 'section'} templates"
-        " (1:1)",
-        "Creator": "geomgen",
-        "CreationDate": output_time(design),
-        "ModDate": output_time(design),
-    }
-    with matplotlib.rc_context(rc), PdfPages(path, metadata=metadata) as pdf:
-        sheet = _Sheet(design.title, paper, (width, height), region)
-        number = 0
-        for t, _ext, page_tiles, crosses in plans:
+    # PDF date (PDF 1.7, 7.9.4): D:YYYYMMDDHHmmSS and Z for UTC
+    when = output_time(design).strftime("D:%Y%m%d%H%M%SZ")
+    canvas = Canvas(
+        str(path),
+        pagesize=(width * PT_PER_MM, height * PT_PER_MM),
+        pageCompression=1,
+        invariant=1,  # no clock, no random file identifier
+    )
+    canvas.setDateFormatter(lambda *_: when)
+    canvas.setTitle(
+        f"{design.title}: {'section and former' if formers else 'section'} templates (1:1)"
+    )
+    canvas.setCreator("geomgen")
+    canvas.setAuthor("")
+    canvas.setSubject("")
+    sheet = _Sheet(canvas, design.title, paper, (width, height), region)
+    number = 0
+    # page streams deflated only (reportlab's default adds an ASCII85 layer: 25 % larger and
+    # slow to encode); the setting is read as each page is made
+    a85, rl_config.useA85 = rl_config.useA85, 0
+    try:
+        for t, strokes, page_tiles, crosses in plans:
             for k, tile in enumerate(page_tiles, start=1):
                 number += 1
                 notes = _notes_on([n for n in t.notes if n.kind != "label"], tile, page_tiles)
-                sheet.draw(t, tile, k, len(page_tiles), notes, crosses, number, sheets)
-                pdf.savefig(sheet.figure)
-                sheet.wipe()
+                sheet.draw(t, strokes, tile, k, len(page_tiles), notes, crosses, number, sheets)
+                canvas.showPage()
+        canvas.save()
+    finally:
+        rl_config.useA85 = a85
     return path
 
 
@@ -274,64 +278,68 @@ def _notes_on(notes, tile: Tile, page_tiles: list[Tile]) -> list[Note]:
 
 
 class _Sheet:
-    """One figure the size of the paper with an axes spanning it, 1 data unit = 1 mm; reused
-    for every page (artists are removed after each page is saved)."""
+    """Draws one page after another on a reportlab canvas: positions in page mm (from the
+    lower-left corner of the paper), written in points (72 / 25.4 pt per mm)."""
 
-    def __init__(self, title: str, paper: str, size: tuple[float, float], region):
-        from matplotlib.figure import Figure
-        from matplotlib.font_manager import FontProperties
-
+    def __init__(self, canvas, title: str, paper: str, size: tuple[float, float], region):
+        self.canvas = canvas
         self.title, self.paper, self.size, self.region = title, paper, size, region
-        width, height = size
-        self.figure = Figure(figsize=(width / 25.4, height / 25.4))
-        ax = self.figure.add_axes((0.0, 0.0, 1.0, 1.0))
-        ax.set_xlim(0.0, width)
-        ax.set_ylim(0.0, height)
-        ax.set_autoscale_on(False)
-        ax.set_axis_off()
-        self.ax = ax
-        # core Helvetica (not embedded) is filed under the weight "medium"
-        self.font = FontProperties(family="Helvetica", weight="medium")
-
-    def wipe(self) -> None:
-        for artist in [*self.ax.lines, *self.ax.texts]:
-            artist.remove()
+        self.words = canvas.beginText()  # the page's text object, begun anew by draw
+        self.font_size: float | None = None
+        self.colour: tuple[float, float, float] | None = None
 
     def lines(self, polylines: list[np.ndarray], kind: str) -> None:
-        """Polylines of one kind (page mm) as one path; NaN rows separate them."""
-        from matplotlib.lines import Line2D
-
+        """Polylines of one kind (page mm) stroked as one path, in a saved graphics state."""
         if not polylines:
             return
-        gap = np.full((1, 2), np.nan)
-        p = np.concatenate([x for q in polylines for x in (np.asarray(q, dtype=float), gap)])
-        self.ax.add_line(
-            Line2D(
-                p[:-1, 0],
-                p[:-1, 1],
-                color=_COLOURS.get(kind, "black"),
-                linewidth=_WIDTHS_PT[kind],
-                linestyle=_STYLES.get(kind, "solid"),
-            )
-        )
+        c = self.canvas
+        w = _WIDTHS_PT[kind]
+        c.saveState()
+        c.setLineWidth(w)
+        c.setLineJoin(1)  # round joins; caps stay butt (PDF default)
+        c.setStrokeColorRGB(*_COLOURS.get(kind, (0.0, 0.0, 0.0)))
+        if kind in _DASHES:
+            c.setDash([w * x for x in _DASHES[kind]], 0)
+        p = c.beginPath()
+        for q in polylines:
+            (x, y), *rest = (np.asarray(q, dtype=float) * PT_PER_MM).tolist()
+            p.moveTo(x, y)
+            for x, y in rest:
+                p.lineTo(x, y)
+        c.drawPath(p, stroke=1, fill=0)
+        c.restoreState()
 
-    def text(self, x, y, text, height_mm, align="left", colour="black") -> None:
-        ha = {"left": "left", "centre": "center", "right": "right"}[align]
+    def text(self, x, y, text, height_mm, align="left", colour=(0.0, 0.0, 0.0)) -> None:
+        """One line of text with its baseline at y (page mm); x its left end, middle or right
+        end (align). Lines go into the page's one text object, written by :meth:`draw`."""
         size = height_mm * PT_PER_MM / 0.72  # letter height -> font size: capitals are 0.72 em
-        self.ax.text(
-            x, y, text, fontproperties=self.font, fontsize=size, ha=ha, va="baseline", color=colour
-        )
+        words = self.words
+        if size != self.font_size:
+            words.setFont(_FONT, size)
+            self.font_size = size
+        if colour != self.colour:
+            words.setFillColorRGB(*colour)
+            self.colour = colour
+        x = float(x) * PT_PER_MM
+        if align != "left":
+            w = self.canvas.stringWidth(text, _FONT, size)
+            x -= 0.5 * w if align == "centre" else w
+        words.setTextOrigin(x, float(y) * PT_PER_MM)
+        words.textOut(text)
 
-    def draw(self, t, tile, k, n, notes, crosses, number, sheets) -> None:
+    def draw(self, t, strokes, tile, k, n, notes, crosses, number, sheets) -> None:
+        """One page: the tile's strokes, crosses and notes, the page label, the check bar and
+        the caution; every line of text in one text object, drawn last."""
         width, height = self.size
+        self.words = self.canvas.beginText()
+        self.font_size = self.colour = None  # set by the first line of text
         # drawing mm -> page mm
         shift = np.array([self.region[0] - tile.x0, self.region[1] - tile.y0])
         window = (tile.x0, tile.y0, tile.x0 + tile.width, tile.y0 + tile.height)
         by_kind: dict[str, list[np.ndarray]] = {}
-        for stroke in t.strokes:
-            pts = list(stroke.points) + ([stroke.points[0]] if stroke.closed else [])
-            for piece in clip_polyline(pts, window):
-                by_kind.setdefault(stroke.kind, []).append(piece + shift)
+        for kind, points in strokes:
+            for piece in clip_polyline(points, window):
+                by_kind.setdefault(kind, []).append(piece + shift)
         for cross in crosses:
             if _inside((cross.x, cross.y), window):
                 c = np.array([cross.x, cross.y]) + shift
@@ -344,7 +352,8 @@ class _Sheet:
             self.lines(polylines, kind)
         for note in notes:
             x, y = np.array(note.at) + shift
-            self.text(x, y, note.text, note.height, note.align, _COLOURS.get(note.kind, "black"))
+            colour = _COLOURS.get(note.kind, (0.0, 0.0, 0.0))
+            self.text(x, y, note.text, note.height, note.align, colour)
 
         # page label
         top = height - MARGIN
@@ -378,6 +387,7 @@ class _Sheet:
         for line in textwrap.wrap(CAUTION, 135):
             self.text(MARGIN, y, line, 2.0)
             y -= 2.9
+        self.canvas.drawText(self.words)
 
 
 def _inside(p, box) -> bool:
