@@ -33,6 +33,66 @@ class _Parser(argparse.ArgumentParser):
         _say(message, end="", file=file)
 
 
+#: each command's --help ends with an example and the files it writes (kept as written)
+_EPILOGS = {
+    "size": """\
+example:
+  geomgen size examples/veyra-t2.yaml --out out
+
+writes in OUT/<name>/:
+  report.json, report.md    every computed quantity (JSON in SI, Markdown in your units)
+  report.html               tables, three-view, checks in one page
+  three-view.svg, three-view.png   plan, front and side views
+  dxf/plan.dxf, dxf/<surface>-planform.dxf, dxf/templates.dxf   1:1 shop drawings (mm)
+with --no-drawings only report.json and report.md.""",
+    "build": """\
+example:
+  geomgen build examples/veyra-t2.yaml --out out
+
+writes in OUT/<name>/ everything `geomgen size` writes, and:
+  <name>.step               STEP assembly (mm), every part named and coloured
+  stl/<part>.stl            one STL per part
+  parts.json                each part's volume and bounding box
+  templates.pdf             1:1 section templates tiled on paper
+  checks.json               every self-check (failed: OUT/<name>.failed-checks.json)
+the cache of solids is kept in OUT/.cache/.""",
+    "model": """\
+example:
+  geomgen model examples/veyra-t2.yaml --scale 1:10 --out out
+
+writes in OUT/<name>-model/:
+  stl/<piece>.stl           one STL per printed piece (mm)
+  <name>-model.3mf          all pieces in one 3MF file
+  parts.md, parts.csv       size, volume, mass and print orientation of each piece
+  model-report.md           scale, holes, Reynolds numbers
+  checks.json               every check of the pieces""",
+    "diff": """\
+example:
+  geomgen diff examples/veyra-t2.yaml my-variant.yaml --format json
+
+writes no file: the differences go to standard output (exit 0 equal, 1 different).""",
+    "sweep": """\
+example:
+  geomgen sweep examples/veyra-t2.yaml --vary "wing.aspect_ratio=7:9:0.5" \\
+      --plot wing.aspect_ratio:wing_area_m2
+
+writes in OUT/<name>-sweep/:
+  <name>-vNNN/design.yaml   each variant's design file, its outputs beside it
+  summary.csv               one row per variant
+  sweep.png                 with --plot: the plotted column pairs""",
+    "schema": """\
+example:
+  geomgen schema > geomgen-design.schema.json
+
+writes no file: the JSON Schema goes to standard output.""",
+}
+
+
+def _help(command: str) -> dict:
+    """The keywords giving a command's --help its example and output files, kept as written."""
+    return {"epilog": _EPILOGS[command], "formatter_class": argparse.RawDescriptionHelpFormatter}
+
+
 def _parser() -> argparse.ArgumentParser:
     p = _Parser(
         prog="geomgen",
@@ -41,9 +101,13 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--version", action="version", version=f"geomgen {__version__}")
     sub = p.add_subparsers(dest="command", required=True)
-    size = sub.add_parser("size", help="sizing, corner points and hinge lines; writes reports")
+    size = sub.add_parser(
+        "size", help="sizing, corner points and hinge lines; writes reports", **_help("size")
+    )
     build = sub.add_parser(
-        "build", help="size, then loft the solids, cut the control surfaces, export, check"
+        "build",
+        help="size, then loft the solids, cut the control surfaces, export, check",
+        **_help("build"),
     )
     for command in (size, build):
         command.add_argument("design", help="design file (YAML)")
@@ -77,7 +141,9 @@ def _parser() -> argparse.ArgumentParser:
         "CPU); the outputs are the same bytes whatever the number",
     )
     model = sub.add_parser(
-        "model", help="printable wind-tunnel model pieces: STL, 3MF, parts list, checks"
+        "model",
+        help="printable wind-tunnel model pieces: STL, 3MF, parts list, checks",
+        **_help("model"),
     )
     model.add_argument("design", help="design file (YAML)")
     model.add_argument("--out", default="out", help="output folder (default: out)")
@@ -87,7 +153,9 @@ def _parser() -> argparse.ArgumentParser:
         "--span", default=None, help='model span tip to tip with its unit, e.g. "900 mm"'
     )
     diff = sub.add_parser(
-        "diff", help="what changed between two design files or two output folders"
+        "diff",
+        help="what changed between two design files or two output folders",
+        **_help("diff"),
     )
     diff.add_argument("old", help="design file (YAML) or output folder holding report.json")
     diff.add_argument("new", help="the same kind as OLD")
@@ -99,7 +167,9 @@ def _parser() -> argparse.ArgumentParser:
         help="relative difference below which two values are equal (default: 1e-9)",
     )
     sweep = sub.add_parser(
-        "sweep", help="size (or build) a grid of variants of one design; one CSV row each"
+        "sweep",
+        help="size (or build) a grid of variants of one design; one CSV row each",
+        **_help("sweep"),
     )
     sweep.add_argument("design", help="design file (YAML)")
     sweep.add_argument(
@@ -130,7 +200,7 @@ def _parser() -> argparse.ArgumentParser:
         help="plot summary columns to sweep.png; a pair of two varied keys draws a "
         "feasibility map (each variant marked ok or by its failing key)",
     )
-    sub.add_parser("schema", help="print the JSON Schema of a design file")
+    sub.add_parser("schema", help="print the JSON Schema of a design file", **_help("schema"))
     return p
 
 
@@ -273,7 +343,13 @@ def _run(args: argparse.Namespace) -> int:
             folder = run_size(
                 Path(args.design), Path(args.out), args.units, drawings=not args.no_drawings
             )
-            _say(f"geomgen: wrote the reports and drawings in {folder}")
+            written = (
+                "report.json and report.md (no drawings)"
+                if args.no_drawings
+                else "report.json, report.md, report.html, three-view.svg, three-view.png "
+                "and the DXF files in dxf/"
+            )
+            _say(f"geomgen: wrote {written} in {folder}")
             return 0
         if args.command == "build":
             only = None

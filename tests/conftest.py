@@ -66,3 +66,14 @@ def demo_only_aileron_right(tmp_path_factory: pytest.TempPathFactory) -> CliRun:
     return run_build_cli(
         [str(DEMO), "--only", "aileron-right"], tmp_path_factory.mktemp("demo-only")
     )
+
+
+@pytest.fixture(scope="session")
+def demo_model(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The demo's printed model at 1:10 (its own scale), made once per session (about 90 s):
+    ``geomgen model examples/veyra-t2.yaml --scale 1:10``; the model's folder."""
+    from geomgen.cli import main
+
+    out = tmp_path_factory.mktemp("demo-model")
+    assert main(["model", str(DEMO), "--scale", "1:10", "--out", str(out)]) == 0
+    return out / "veyra-t2-model"

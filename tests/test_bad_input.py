@@ -527,6 +527,47 @@ CASES = [
         "mapping",
     ),
     Case("key-is-a-number", raw(DEMO_TEXT + "7: seven\n"), "7", "unknown key"),
+    # an unknown key that is declared elsewhere in the file: the message says where it goes
+    Case(
+        "tail-cone-under-a-tail",
+        from_demo(
+            put("horizontal_tail.tail_cone", {"front_radius": "0.4 m", "rear_radius": "0.1 m"})
+        ),
+        "horizontal_tail.tail_cone",
+        "unknown key (tail_cone goes at the top level of the file, not under horizontal_tail); "
+        "allowed here: volume_coefficient, tail_arm,",
+    ),
+    Case(
+        "gross-weight-under-the-wing",
+        from_demo(put("wing.gross_weight", "650 kg")),
+        "wing.gross_weight",
+        "unknown key (gross_weight goes under requirements, not under wing)",
+    ),
+    # a typo: the nearest known key of that mapping (difflib's ratio), or of the whole file
+    Case(
+        "typo-of-a-key-here",
+        from_demo(put("wing.aspect_ration", 7.8)),
+        "wing.aspect_ration",
+        "unknown key (did you mean aspect_ratio?); allowed here: area, aspect_ratio,",
+    ),
+    Case(
+        "typo-of-a-key-in-a-list-item",
+        from_demo(put("wing.panels.0.chord_ration", 0.8)),
+        "wing.panels[0].chord_ration",
+        "unknown key (did you mean chord_ratio?)",
+    ),
+    Case(
+        "typo-of-a-key-elsewhere",
+        from_demo(put("vertical_tail.tail_cones", {"front_radius": "0.4 m"})),
+        "vertical_tail.tail_cones",
+        "unknown key (did you mean tail_cone? it goes at the top level of the file); allowed",
+    ),
+    Case(
+        "top-level-key-under-model",
+        from_demo(put("model.fuselage", {})),
+        "model.fuselage",
+        "unknown key (fuselage goes at the top level of the file, not under model)",
+    ),
     # --- NaN and infinity ---
     Case(
         "aspect-ratio-inf",
@@ -877,3 +918,17 @@ def test_plan_cuts_refuses_absurd_piece_counts() -> None:
     assert len(mdl.plan_cuts(0.0, 1000.0, 208.0, [])) == 4  # ceil(1000 / 208) = 5 pieces
     with pytest.raises(GeometryError, match=f"at most {mdl.MAX_MODEL_PIECES} are made"):
         mdl.plan_cuts(0.0, 1_000_000.0, 8.0, [])
+
+
+def test_schema_says_where_tail_cone_goes() -> None:
+    """A user reading the schema (or an editor's hover text) learns that tail_cone is a
+    top-level key, from both the key and the tail_arm that needs it."""
+    schema = design.json_schema()
+    assert (
+        "top-level key (not under horizontal_tail or vertical_tail)"
+        in (schema["properties"]["tail_cone"]["description"])
+    )
+    for tail in ("horizontal_tail", "vertical_tail"):
+        arm = schema["properties"][tail]["properties"]["tail_arm"]["description"]
+        assert "the top-level key tail_cone" in arm, arm
+        assert "tail_cone" not in schema["properties"][tail]["properties"]

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 import trimesh
 import yaml
-from designs import DEMO, PROFILES, demo_document, make_design, trapezoid_document
+from designs import PROFILES, demo_document, make_design, trapezoid_document
 
 from geomgen.cli import main
 from geomgen.errors import InputError
@@ -87,11 +87,7 @@ def test_deflection_pieces_are_named_by_their_angle() -> None:
 # --- the demo at 1:10 ----------------------------------------------------------------------------
 
 
-@pytest.fixture(scope="module")
-def demo_model(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    out = tmp_path_factory.mktemp("demo-model")
-    assert main(["model", str(DEMO), "--scale", "1:10", "--out", str(out)]) == 0
-    return out / "veyra-t2-model"
+# demo_model (tests/conftest.py): the demo's printed model at 1:10, made once per session
 
 
 def test_demo_model_pieces_fit_the_printer_and_are_watertight(demo_model: Path) -> None:

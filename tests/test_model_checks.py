@@ -184,6 +184,22 @@ def test_3mf_round_trip_keeps_names_arrays_and_volumes(three_pieces, tmp_path):
     assert trimesh.Trimesh(*back["ring"]).volume == pytest.approx(40 * (400 - ngon_area(3, 24)))
 
 
+def test_3mf_shares_the_vertices_of_a_mesh_given_face_by_face(tmp_path):
+    """A mesh whose faces each carry their own vertex copies (as the mesher gives each BRep
+    face its own) is written with every position once: read back by index, every edge is
+    shared by exactly two triangles (a closed 2-manifold, as a slicer reads it)."""
+    box = trimesh.creation.box(extents=(30, 20, 10))
+    loose = (np.asarray(box.vertices)[box.faces].reshape(-1, 3), np.arange(36).reshape(-1, 3))
+    path = tmp_path / "loose.3mf"
+    threemf_io.write_3mf({"loose": loose}, path)
+    v, f = threemf_io.read_3mf(path)["loose"]
+    assert len(v) == 8  # a box's corners
+    edges = np.sort(np.concatenate([f[:, [0, 1]], f[:, [1, 2]], f[:, [2, 0]]]), axis=1)
+    _, uses = np.unique(edges, axis=0, return_counts=True)
+    assert set(uses) == {2}
+    assert trimesh.Trimesh(v, f, process=False).volume == pytest.approx(30 * 20 * 10)
+
+
 def test_3mf_model_says_millimetre_and_names_the_objects(three_pieces, tmp_path):
     path = tmp_path / "pieces.3mf"
     threemf_io.write_3mf(three_pieces, path)

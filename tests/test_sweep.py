@@ -168,6 +168,19 @@ def test_bad_vary_exits_2_with_one_line_naming_vary(tmp_path, vary):
     assert not (tmp_path / "veyra-t2-sweep").exists()  # nothing written
 
 
+@pytest.mark.parametrize(
+    ("vary", "hint"),
+    [
+        ("wing.aspect_ration=7,8", "(did you mean aspect_ratio?)"),
+        ("wing.stall_speed=40,45 kn", "(stall_speed goes under requirements, not under wing)"),
+    ],
+)
+def test_unknown_vary_key_gets_a_suggestion(tmp_path, vary, hint):
+    code, _, stderr = sweep(tmp_path, "--vary", vary)
+    assert code == 2
+    assert stderr.count("\n") == 1 and hint in stderr, stderr
+
+
 def test_a_grid_over_the_limit_is_refused(tmp_path):
     # 30 x 20 = 600 variants > 500
     code, _, stderr = sweep(

@@ -44,21 +44,32 @@ def _fixed_uuids(model_xml: bytes) -> bytes:
     return _UUID_ATTR.sub(replace, model_xml)
 
 
+def shared_vertices(vertices, faces) -> tuple[np.ndarray, np.ndarray]:
+    """The same triangles with each vertex position stored once (exact equality), vertices in
+    the order of their first appearance, faces pointing at them."""
+    v = np.asarray(vertices, dtype=np.float64)
+    f = np.asarray(faces, dtype=np.int64)
+    _, first, inverse = np.unique(v, axis=0, return_index=True, return_inverse=True)
+    order = np.argsort(first)  # unique rows in order of first appearance
+    rank = np.empty_like(order)
+    rank[order] = np.arange(len(order))
+    return v[first[order]], rank[inverse.reshape(-1)][f]
+
+
 def write_3mf(pieces: dict[str, tuple[np.ndarray, np.ndarray]], path: Path) -> None:
     """Write every piece (vertices mm, faces) as its own named 3MF object, unit millimetre, in
-    the model frame (no placement transform), objects sorted by name. The arrays are written
-    as given (no vertex merging). The exporter's random UUIDs and the zip dates are replaced
-    by fixed ones, so the same pieces give a byte-identical file."""
+    the model frame (no placement transform), objects sorted by name. Vertices of exactly
+    equal coordinates are written once (:func:`shared_vertices`): 3MF is an indexed format,
+    and a slicer reading it (PrusaSlicer 2.5) took the mesher's per-face copies of the edge
+    vertices for open seams (180 open edges on an aileron piece whose STL it read as
+    manifold). The exporter's random UUIDs and the zip dates are replaced by fixed ones, so
+    the same pieces give a byte-identical file."""
     if "world" in pieces:
         raise ValueError('"world" is the scene root\'s name and cannot name a piece')
     scene = trimesh.Scene()
     for name in sorted(pieces):
-        vertices, faces = pieces[name]
-        mesh = trimesh.Trimesh(
-            vertices=np.asarray(vertices, dtype=np.float64),
-            faces=np.asarray(faces, dtype=np.int64),
-            process=False,
-        )
+        vertices, faces = shared_vertices(*pieces[name])
+        mesh = trimesh.Trimesh(vertices=vertices, faces=faces, process=False)
         scene.add_geometry(mesh, geom_name=name, node_name=name)
     data = trimesh.exchange.threemf.export_3MF(scene)
     out = io.BytesIO()

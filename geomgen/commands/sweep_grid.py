@@ -82,7 +82,7 @@ def _declared_field(steps: tuple[str | int, ...], document: dict, source: str, k
     """The declaration (geomgen.design.fields) of the key at ``steps``; its parents must be in the
     design (list items too), the key itself may be left out if the design file allows it."""
     from geomgen import design as design_module
-    from geomgen.design.fields import AnyOf, ListOf, Mapping
+    from geomgen.design.fields import AnyOf, ListOf, Mapping, key_hint
 
     field: Any = design_module.DESIGN
     node: Any = document
@@ -94,9 +94,10 @@ def _declared_field(steps: tuple[str | int, ...], document: dict, source: str, k
             known = {k: f for m in mappings for k, f in m.fields}
             if step not in known:
                 allowed = ", ".join(known) if known else "none (it is a single value)"
+                hint = key_hint(design_module.DESIGN, step, list(known), _path_text(steps[:depth]))
                 raise _vary_error(
-                    f"unknown key {_path_text(steps[: depth + 1])!r} in {source}; "
-                    f"keys allowed in {where}: {allowed}"
+                    f"unknown key {_path_text(steps[: depth + 1])!r} in {source}"
+                    f"{f' ({hint})' if hint else ''}; keys allowed in {where}: {allowed}"
                 )
             field = known[step]
             if not isinstance(node, dict) or (step not in node and not last):

@@ -67,7 +67,9 @@ DESIGN = Mapping(
             "tail_cone",
             Mapping(
                 optional=True,
-                description="tail-cone radii for the minimum-wetted-area tail arm",
+                description="a top-level key (not under horizontal_tail or vertical_tail): the "
+                "tail-cone radii for the minimum-wetted-area tail arm of either tail "
+                "(tail_arm: optimum); leave it out when a fuselage is given",
                 fields=(
                     (
                         "front_radius",

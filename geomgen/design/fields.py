@@ -9,6 +9,7 @@ plain SI floats with its range checked. Messages name the key path, e.g.
 
 from __future__ import annotations
 
+import difflib
 import math
 import re
 from dataclasses import dataclass, field
@@ -24,6 +25,16 @@ class FieldError(ValueError):
         self.path = path
         self.message = message
         super().__init__(f"{path}: {message}" if path else message)
+
+
+class UnknownKeyError(FieldError):
+    """A key the mapping at its place does not declare. ``key`` is the key as written,
+    ``known`` the keys allowed at that place (see :func:`key_hint` for a suggestion)."""
+
+    def __init__(self, path: str, key: str, known: tuple[str, ...]):
+        self.key = key
+        self.known = known
+        super().__init__(path, f"unknown key; allowed here: {', '.join(known)}")
 
 
 def _fmt(x: float) -> str:
@@ -354,10 +365,7 @@ class Mapping(Field):
         known = dict(self.fields)
         for key in value:
             if key not in known:
-                raise FieldError(
-                    _join(path, str(key)),
-                    f"unknown key; allowed here: {', '.join(known)}",
-                )
+                raise UnknownKeyError(_join(path, str(key)), str(key), tuple(known))
         out: dict[str, Any] = {}
         for key, spec in self.fields:
             sub = _join(path, key)
@@ -377,3 +385,56 @@ class Mapping(Field):
 
 def _join(path: str, key: str) -> str:
     return f"{path}.{key}" if path else key
+
+
+def declared_places(root: Field) -> dict[str, list[str]]:
+    """Every key declared anywhere under ``root`` -> the paths of the mappings declaring it,
+    in declaration order (``""`` = the top level; list items written ``[i]``)."""
+    places: dict[str, list[str]] = {}
+
+    def walk(spec: Field, path: str) -> None:
+        if isinstance(spec, Mapping):
+            for key, sub in spec.fields:
+                if path not in places.setdefault(key, []):
+                    places[key].append(path)
+                walk(sub, _join(path, key))
+        elif isinstance(spec, ListOf):
+            walk(spec.item, f"{path}[i]")
+        elif isinstance(spec, AnyOf):
+            for option in spec.options:
+                walk(option, path)
+
+    walk(root, "")
+    return places
+
+
+def _where(places: list[str]) -> str:
+    """``["", "wing"]`` -> ``at the top level of the file or under wing`` (three at most)."""
+    shown = ["at the top level of the file" if p == "" else f"under {p}" for p in places[:3]]
+    more = f", and {len(places) - 3} more places" if len(places) > 3 else ""
+    return " or ".join(shown) + more
+
+
+def key_hint(root: Field, key: str, known: tuple[str, ...] | list[str], here: str) -> str:
+    """What to say of an unknown ``key`` in the mapping at path ``here`` allowing ``known``
+    (``root`` the whole file's declaration): where the key goes if it is declared elsewhere,
+    else the nearest known key here, else the nearest key declared elsewhere (difflib's
+    ratio, at least 0.6 here and 0.75 elsewhere); ``""`` when nothing is near."""
+    places = declared_places(root)
+    if key in places:
+        not_here = f", not under {here}" if here else ", not at the top level"
+        return f"{key} goes {_where(places[key])}{not_here}"
+    near = difflib.get_close_matches(key, list(known), n=1, cutoff=0.6)
+    if near:
+        return f"did you mean {near[0]}?"
+    near = difflib.get_close_matches(key, list(places), n=1, cutoff=0.75)
+    if near:
+        return f"did you mean {near[0]}? it goes {_where(places[near[0]])}"
+    return ""
+
+
+def unknown_key_message(err: UnknownKeyError, root: Field) -> str:
+    """The one-line message of an unknown key: the hint in brackets, then what is allowed."""
+    here = err.path[: -len(err.key) - 1] if err.path != err.key else ""
+    hint = key_hint(root, err.key, err.known, here)
+    return f"unknown key ({hint}); allowed here: {', '.join(err.known)}" if hint else err.message

@@ -12,7 +12,7 @@ from pathlib import Path
 from typing import Any
 
 from geomgen.design.document import DESIGN, Design, build, json_schema
-from geomgen.design.fields import FieldError
+from geomgen.design.fields import FieldError, UnknownKeyError, unknown_key_message
 from geomgen.errors import InputError
 
 #: Design files larger than this are refused before parsing (bytes).
@@ -129,7 +129,7 @@ def from_mapping(document: Any, source: str = "<design>") -> Design:
     try:
         raw = DESIGN.parse(document, "")
     except FieldError as err:
-        raise InputError(err.message, source=source, path=err.path) from None
+        raise _refusal(err, source) from None
     design = build(raw, source)
     if design.fuselage is not None and design.tail_cone_radii is not None:
         raise InputError(
@@ -150,6 +150,13 @@ def from_mapping(document: Any, source: str = "<design>") -> Design:
     return design
 
 
+def _refusal(err: FieldError, source: str) -> InputError:
+    """The InputError of a declaration's refusal; an unknown key gets a suggestion (where
+    the key belongs, or the nearest known key)."""
+    message = unknown_key_message(err, DESIGN) if isinstance(err, UnknownKeyError) else err.message
+    return InputError(message, source=source, path=err.path)
+
+
 def _validate_structure(document: dict[str, Any], source: str) -> None:
     """Validate with the jsonschema library; report the first error in our own words."""
     import jsonschema
@@ -162,7 +169,7 @@ def _validate_structure(document: dict[str, Any], source: str) -> None:
     try:
         DESIGN.parse(document, "")
     except FieldError as err:
-        raise InputError(err.message, source=source, path=err.path) from None
+        raise _refusal(err, source) from None
     path = ".".join(str(p) for p in error.absolute_path)
     raise InputError(error.message.splitlines()[0][:200], source=source, path=path or None)
 

@@ -95,7 +95,7 @@ def surface(which: str, *, tail: bool, fin: bool = False, controls: tuple[str, .
                     ),
                     description="distance from the wing's MGC quarter-chord point to this "
                     "tail's MGC quarter-chord point, or 'optimum' for the minimum-wetted-area "
-                    "arm (needs tail_cone or a fuselage)",
+                    "arm (needs the top-level key tail_cone, beside the tails, or a fuselage)",
                     summary='a length such as "4.2 m" or the word optimum',
                 ),
             ),
