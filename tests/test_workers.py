@@ -55,6 +55,18 @@ def sleep_task(folder: Path, seconds: float) -> int:
     return os.getpid()
 
 
+def fuse_task(folder: Path) -> float:
+    import cadquery as cq
+
+    return kernel_boolean(cq)
+
+
+def kernel_boolean(cq) -> float:
+    """A union of a box and a sphere, run by the kernel on its parallel threads (mm^3)."""
+    solid = cq.Workplane().box(2, 2, 2).union(cq.Workplane().sphere(1.3)).val()
+    return solid.Volume()
+
+
 def _alive(pid: int) -> bool:
     try:
         os.kill(pid, 0)
@@ -123,6 +135,23 @@ def test_leaving_on_an_interrupt_ends_the_running_workers_at_once(tmp_path) -> N
     while any(_alive(pid) for pid in pids):
         assert time.monotonic() < deadline, "a worker outlived the build"
         time.sleep(0.05)
+
+
+@pytest.mark.slow
+def test_workers_run_the_kernel_after_this_process_has_run_it(tmp_path) -> None:
+    """An in-process build, then another (a script, watch, the tests): the second build's
+    workers must not inherit the kernel's thread pool from this process (forked from it, a
+    boolean in a worker waited forever)."""
+    import cadquery as cq
+
+    here = kernel_boolean(cq)  # the kernel's threads now run in this process
+    for _ in range(2):
+        with Tasks(2, tmp_path) as tasks:
+            runs = [tasks.add(fuse_task) for _ in range(4)]
+            got = [tasks.result(r, timeout=120) for r in runs]
+        # the same union in each process: the box less the sphere's outside part
+        assert got == pytest.approx([here] * 4, rel=1e-9)
+        assert 8.0 < here < 8.0 + 4.0 / 3.0 * 3.141592653589793 * 1.3**3
 
 
 def _put_same_entry(root: str, key: str, start_at: float) -> None:

@@ -4,10 +4,10 @@ were added.
 
 Tasks hand their results over through files (cache entries, the output folder) and small
 return values, and the main process reads everything back in a fixed order, so a build
-writes the same bytes whatever ``jobs`` is. Workers are forked from the main process once,
-before it does any kernel work, so they share the imported libraries and the layout (no
-cadquery import, nothing pickled but task arguments); each ignores Ctrl-C (the main process
-ends them) and dies with the main process.
+writes the same bytes whatever ``jobs`` is. Workers are forked, not from this process but
+from a fork server that has imported cadquery and trimesh once (see ``_worker_context``);
+the context (the layout, the folders) is handed to each worker once. Each ignores Ctrl-C (the
+main process ends them) and dies with the main process.
 """
 
 from __future__ import annotations
@@ -43,6 +43,23 @@ def check_jobs(jobs: int, key: str = "--jobs") -> int:
     if not 1 <= jobs <= MAX_JOBS:
         raise InputError(f"must be 1 to {MAX_JOBS} (got {jobs})", path=key)
     return jobs
+
+
+#: what the fork server imports once, before it forks any worker
+PRELOAD = ["geomgen.commands.build_tasks", "geomgen.solids.assembly", "geomgen.checks.solid_checks"]
+
+
+def _worker_context():
+    """Workers forked from a fork server: a clean process that imports cadquery and trimesh
+    once and never runs the kernel itself. (Forking this process instead would copy the
+    kernel's thread pool in whatever state an earlier build in it left it, and a boolean in
+    the child can wait forever for threads that are not there: seen with two in-process
+    builds.) None where there is no fork server (then the tasks run in this process)."""
+    if "forkserver" not in multiprocessing.get_all_start_methods():
+        return None
+    ctx = multiprocessing.get_context("forkserver")
+    ctx.set_forkserver_preload(PRELOAD)
+    return ctx
 
 
 def _die_with_parent() -> None:
@@ -96,10 +113,11 @@ class Tasks:
         self._running = 0  # tasks handed to the workers and not yet done
         self._lock = threading.Lock()
         self._pool: ProcessPoolExecutor | None = None
-        if jobs > 1 and "fork" in multiprocessing.get_all_start_methods():
+        mp_context = _worker_context() if jobs > 1 else None
+        if mp_context is not None:
             self._pool = ProcessPoolExecutor(
                 max_workers=jobs,
-                mp_context=multiprocessing.get_context("fork"),
+                mp_context=mp_context,
                 initializer=_start_worker,
                 initargs=(context,),
             )
@@ -198,9 +216,9 @@ class Tasks:
             outer.set_result(inner.result())
         self._submit_ready()
 
-    def result(self, task: int) -> Any:
+    def result(self, task: int, timeout: float | None = None) -> Any:
         """The task's return value once it is done; its error raised here."""
-        return self._futures[task].result()
+        return self._futures[task].result(timeout)
 
 
 def _broken(err: BaseException) -> GeometryError:
