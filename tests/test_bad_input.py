@@ -768,6 +768,36 @@ CASES = [
         "solids.tessellation",
         "plain number in [1e-05, 0.01]",
     ),
+    Case(
+        "cg-fraction-out-of-range",
+        from_demo(put("requirements.cg", 3.5)),
+        "requirements.cg",
+        "[-1, 2]",
+    ),
+    Case(
+        "cg-as-a-word",
+        from_demo(put("requirements.cg", "middle")),
+        "requirements.cg",
+        "fraction of the MGC",
+    ),
+    Case(
+        "cg-aft-ahead-of-forward",
+        from_demo(put("requirements.cg", {"forward": 0.3, "aft": "1.7 m"})),
+        "requirements.cg",
+        "forward must lie ahead of aft",
+    ),
+    Case(
+        "cg-without-aft",
+        from_demo(put("requirements.cg", {"forward": 0.2})),
+        "requirements.cg",
+        "aft",
+    ),
+    Case(
+        "tail-dynamic-pressure-ratio-2",
+        from_demo(put("requirements.tail_dynamic_pressure_ratio", 2)),
+        "requirements.tail_dynamic_pressure_ratio",
+        "[0.5, 1.2]",
+    ),
 ]
 
 

@@ -37,6 +37,7 @@ FT = 0.3048
 LBF = 0.45359237 * 9.80665
 TO_SI = {
     "1": 1.0,
+    "1/rad": 1.0,  # lift-curve slopes: per rad in both unit systems
     "m": 1.0,
     "m^2": 1.0,
     "m/s": 1.0,

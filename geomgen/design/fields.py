@@ -286,6 +286,8 @@ class AnyOf(Field):
 
 
 def _shape_fits(option: Field, value: Any) -> bool:
+    if isinstance(option, AnyOf):
+        return any(_shape_fits(o, value) for o in option.options)
     if isinstance(option, Number):
         return isinstance(value, (int, float)) and not isinstance(value, bool)
     if isinstance(option, Quantity):

@@ -28,6 +28,7 @@ from geomgen.outputs.html_sections import (
     checks_section,
     corners_section,
     hinges_section,
+    stability_section,
     stall_section,
     surfaces_section,
     svg_section,
@@ -103,6 +104,9 @@ def to_html(
     tails = tails_section(layout, c)
     if tails:
         sections.append(("tails", "Tail arms and volume coefficients", tails))
+    stability = stability_section(c)
+    if stability:
+        sections.append(("stability", "Neutral point and static margins", stability))
     if svg is not None:
         sections.append(("three-view", "Three-view", svg_section(svg)))
     sections.append(("corners", f"Corner points ({c.unit('length')})", corners_section(layout, c)))

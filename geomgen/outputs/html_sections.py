@@ -71,6 +71,9 @@ class Cells:
         if si_unit == "1":
             shown, out_unit = si, "1"
             text = _number(shown, fmt or ".4f")
+        elif si_unit == "1/rad":  # a lift-curve slope: per rad in both systems
+            shown, out_unit = si, si_unit
+            text = _number(shown, fmt or ".4f") + (f" {out_unit}" if unit else "")
         else:
             kind = _KIND_OF_UNIT[si_unit]
             shown, out_unit = to_output(si, kind, self.system)
@@ -250,6 +253,66 @@ def tails_section(layout: Layout, c: Cells) -> str:
         out.append("<h3>Tail arm of least wetted area</h3>\n")
         out.append(_table(["quantity", "value"], rows, "quantities"))
     return "".join(out)
+
+
+def stability_section(c: Cells) -> str:
+    """Neutral point, static margins and the slopes and ratios they came from (report.json's
+    ``stability``); empty without a horizontal tail."""
+    st = c.data.get("stability")
+    if st is None:
+        return ""
+    src = st["sources"]
+    b = "stability"
+    rows = [
+        _row(_th("neutral point x (stick-fixed)"), c.value(f"{b}.neutral_point_x"), _td("")),
+        _row(
+            _th("neutral point, fraction of the MGC"),
+            c.value(f"{b}.neutral_point_mgc_fraction"),
+            _td(src["neutral_point"]),
+        ),
+    ]
+    for i, m in enumerate(st["cg"]):
+        rows += [
+            _row(_th(f"{m['label']} CG x"), c.value(f"{b}.cg.{i}.x"), _td("")),
+            _row(
+                _th(f"{m['label']} CG, fraction of the MGC"),
+                c.value(f"{b}.cg.{i}.mgc_fraction"),
+                _td(""),
+            ),
+            _row(
+                _th(f"static margin at the {m['label']} CG (fraction of the MGC)"),
+                c.value(f"{b}.cg.{i}.static_margin"),
+                _td(src["static_margin"]),
+            ),
+        ]
+    rows += [
+        _row(
+            _th("wing lift-curve slope"), c.value(f"{b}.wing_lift_slope"), _td(src["lift_slopes"])
+        ),
+        _row(_th("tail lift-curve slope"), c.value(f"{b}.tail_lift_slope"), _td("")),
+        _row(_th("section lift-curve slope"), c.value(f"{b}.section_lift_slope"), _td("")),
+        _row(_th("Mach number"), c.value(f"{b}.mach"), _td(src["mach"])),
+        _row(
+            _th("downwash gradient"),
+            c.value(f"{b}.downwash_gradient"),
+            _td(src["downwash_gradient"]),
+        ),
+        _row(
+            _th("tail dynamic-pressure ratio"),
+            c.value(f"{b}.tail_dynamic_pressure_ratio", ".3f"),
+            _td(src["tail_dynamic_pressure_ratio"]),
+        ),
+        _row(_th("tail area / wing area"), c.value(f"{b}.tail_area_ratio"), _td("")),
+        _row(
+            _th("tail height above the wing root chord"),
+            c.value(f"{b}.tail_height_above_wing_root"),
+            _td(""),
+        ),
+        _row(_th("fuselage contribution"), _td("omitted"), _td(src["fuselage"])),
+    ]
+    return f'<p role="note">{escape(st["note"])}</p>\n' + _table(
+        ["quantity", "value", "source"], rows, "quantities"
+    )
 
 
 def svg_section(svg: str) -> str:

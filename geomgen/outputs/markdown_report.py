@@ -10,6 +10,7 @@ from geomgen import __version__
 from geomgen.design.units import to_output
 from geomgen.geometry.layout import Layout, SurfaceLayout
 from geomgen.outputs.report import CAUTION, SURFACE_TITLES, body_data
+from geomgen.outputs.stability_report import stability_markdown
 
 
 class _Fmt:
@@ -89,6 +90,7 @@ def to_markdown(layout: Layout, system: str) -> str:
     lines += _table(["quantity"] + [SURFACE_TITLES[k] for k in keys], rows)
     lines += _body_markdown(layout, f)
     lines += _tails_markdown(layout, f)
+    lines += stability_markdown(sz, lambda x: f(x, "length"))
     for sl in layout.surfaces:
         lines += _corners_markdown(sl, f)
     lines += [f"> {CAUTION}", ""]

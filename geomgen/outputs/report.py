@@ -13,6 +13,7 @@ from geomgen import __version__
 from geomgen.design.units import SI_UNITS
 from geomgen.geometry.junction import area_between
 from geomgen.geometry.layout import Layout, SurfaceLayout
+from geomgen.outputs.stability_report import stability_data
 
 CAUTION = (
     "CAUTION: geomgen output is a design aid. It is not an airworthiness, structural or "
@@ -86,6 +87,9 @@ def report_data(layout: Layout) -> dict[str, Any]:
         "surfaces": {s.key: _surface_data(s) for s in layout.surfaces},
         "tails": _tails_data(layout),
     }
+    stability = stability_data(sz)
+    if stability is not None:
+        data["stability"] = stability
     if layout.body is not None:
         data["fuselage"] = body_data(layout)
     return data

@@ -28,6 +28,7 @@ from geomgen.shapes import airfoils
 from geomgen.shapes.outline import MAX_TE_GAP
 from geomgen.sizing.atmosphere import AtmosphereState, isa
 from geomgen.sizing.planform import PanelInput, Planform, build_planform
+from geomgen.sizing.stability import Stability, estimate
 
 
 @dataclass(frozen=True)
@@ -107,6 +108,7 @@ class Sizing:
     vertical_tail: SurfaceSizing | None
     tail_arm_rule: TailArmRule | None
     body_fit: BodyFit | None = None
+    stability: Stability | None = None  # None without a horizontal tail
 
     @property
     def surfaces(self) -> tuple[SurfaceSizing, ...]:
@@ -143,7 +145,7 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
     follows the tails, repeated until the body's end and the tail arm agree."""
     body = design.fuselage
     if body is None or body.end_behind_tails is None:
-        return _size_once(design, airfoil_dirs)
+        return _with_stability(_size_once(design, airfoil_dirs))
     if design.horizontal_tail is None and design.vertical_tail is None:
         raise InputError(
             "needs a tail to follow: this design has no horizontal or vertical tail",
@@ -172,7 +174,7 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
                 body_end_as_written=written,
                 tail_arm=None if rule is None else rule.optimum_arm,
             )
-            return dataclasses.replace(sized, body_fit=fit)
+            return _with_stability(dataclasses.replace(sized, body_fit=fit))
         why = (
             f"the rearmost tail root's trailing edge lies at x = {te:.3f} m and "
             f"fuselage.end_behind_tails is {gap * 1000:g} mm"
@@ -187,6 +189,38 @@ def size(design: Design, airfoil_dirs: tuple = ()) -> Sizing:
         source=design.source,
         path="fuselage.end_behind_tails",
     )
+
+
+def _with_stability(sized: Sizing) -> Sizing:
+    """The sizing with its static-stability estimate (see ``stability``): the Mach number of
+    the stall point, the requirements' CG positions, forward before aft."""
+    design = sized.design
+    req = design.requirements
+    if sized.horizontal_tail is None:
+        if req.cg:
+            raise InputError(
+                "needs a horizontal tail for the neutral point (this design has none)",
+                source=design.source,
+                path="requirements.cg",
+            )
+        return sized
+    result = estimate(
+        wing=sized.wing,
+        tail=sized.horizontal_tail,
+        mach=req.stall_speed / sized.stall.atmosphere.speed_of_sound,
+        section_slope=req.section_lift_slope,
+        tail_q_ratio=req.tail_dynamic_pressure_ratio,
+        cg=req.cg,
+    )
+    if len(result.cg) == 2 and not result.cg[0].x < result.cg[1].x:
+        fwd, aft = result.cg
+        raise InputError(
+            f"forward must lie ahead of aft (forward at x = {fwd.x:.3f} m, aft at x = "
+            f"{aft.x:.3f} m)",
+            source=design.source,
+            path="requirements.cg",
+        )
+    return dataclasses.replace(sized, stability=result)
 
 
 def _root_te_x(ss: SurfaceSizing) -> float:
