@@ -27,6 +27,20 @@ class BuildContext:
     folder: OutputFolder
     cache_root: Path
     when: datetime  # the outputs' stamp
+    tolerances: Any = None  # the checks' TOLERANCES of the build's own process
+    pid: int = 0  # the build's own process
+
+    def adopt(self) -> None:
+        """In a worker: run with the tolerances the build's process has (and keyed the unit
+        cache with), not the ones the worker's import of the module made."""
+        import os
+
+        if self.tolerances is None or os.getpid() == self.pid:
+            return
+        from geomgen.checks import solid_checks, tolerances
+
+        tolerances.TOLERANCES = self.tolerances
+        solid_checks.TOLERANCES = self.tolerances
 
     @property
     def stl_dir(self) -> Path:
@@ -86,6 +100,7 @@ def solid_task(ctx: BuildContext, unit) -> None:
 def unit_task(ctx: BuildContext, unit, key: str) -> None:
     """One unit's STL files and checks, from its solids as read back from their entry,
     saved as the cache entry ``key``."""
+    ctx.adopt()
     from geomgen.commands.part_outputs import make_and_save
     from geomgen.solids import assembly
     from geomgen.store.cache import Cache
@@ -99,6 +114,7 @@ def unit_task(ctx: BuildContext, unit, key: str) -> None:
 def step_task(ctx: BuildContext, units: tuple, name: str) -> dict[str, float]:
     """The STEP assembly of every unit's parts, written and read back: the part volumes
     (mm^3) it holds."""
+    ctx.adopt()
     from geomgen.checks.tolerances import TOLERANCES
     from geomgen.solids import assembly, kernel, step
     from geomgen.store.cache import Cache

@@ -4,6 +4,7 @@ checks). Each function returns what it wrote; errors are raised, never printed h
 from __future__ import annotations
 
 import json
+import os
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -132,7 +133,18 @@ def _build_locked(design_path, out_root, units, only, fresh, jobs, d, layout, di
     system = units or d.units
     tessellation = d.solids.tessellation
     with OutputFolder(out_root / d.name) as folder:
-        ctx = bt.BuildContext(layout, dirs, system, folder, out_root / ".cache", output_time(d))
+        from geomgen.checks import tolerances
+
+        ctx = bt.BuildContext(
+            layout,
+            dirs,
+            system,
+            folder,
+            out_root / ".cache",
+            output_time(d),
+            tolerances.TOLERANCES,
+            os.getpid(),
+        )
         # the workers are forked here, before this process does any kernel work
         with Tasks(jobs, ctx) as tasks:
             later: dict = {}

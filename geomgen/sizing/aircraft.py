@@ -197,12 +197,8 @@ def _with_stability(sized: Sizing) -> Sizing:
     design = sized.design
     req = design.requirements
     if sized.horizontal_tail is None:
-        if req.cg:
-            raise InputError(
-                "needs a horizontal tail for the neutral point (this design has none)",
-                source=design.source,
-                path="requirements.cg",
-            )
+        # no tail, no tail-volume estimate: the CG positions are kept but no neutral point
+        # is estimated (a wing-only study, such as a wing cut from a full design)
         return sized
     result = estimate(
         wing=sized.wing,
