@@ -204,3 +204,15 @@ def read_step(
                 v = volume(shape, eps=1e-7)
             out[part] = v
     return out
+
+
+def read_step_shapes(path: Path) -> dict[str, cq.Shape]:
+    """Every part of a STEP assembly written by :func:`write_step`, by name (mm, aircraft
+    frame), in file order."""
+    back = cq.Assembly.importStep(str(path))
+    out = {}
+    for name, child in back.traverse():
+        if child.obj is not None and name != back.name:
+            shape = child.obj if isinstance(child.obj, cq.Shape) else child.obj.val()
+            out[name.split("/")[-1]] = shape
+    return out
