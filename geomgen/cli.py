@@ -1,6 +1,6 @@
 """Command line: ``geomgen size``, ``geomgen build``, ``geomgen schema``, ``geomgen --version``.
 
-Thin on purpose: parse arguments, call the pipeline, print, map errors to exit codes
+Thin on purpose: parse arguments, call the API (size, build) or the commands, print, map errors to exit codes
 (0 done, 1 geometry could not be built, a check failed or the outputs could not be written,
 2 bad input, 130 interrupted, 141 standard output was a pipe closed early).
 """
@@ -14,7 +14,7 @@ import sys
 from pathlib import Path
 
 from geomgen import __version__
-from geomgen.commands.pipeline import run_build, run_size
+from geomgen.api import build_file, size_file
 from geomgen.errors import GeomgenError, InputError
 
 
@@ -262,18 +262,16 @@ def _run(args: argparse.Namespace) -> int:
             )
             return 1 if swept.failed else 0
         if args.command == "size":
-            folder = run_size(
-                Path(args.design), Path(args.out), args.units, drawings=not args.no_drawings
-            )
+            folder = size_file(args.design, args.out, args.units, drawings=not args.no_drawings)
             _say(f"geomgen: wrote the reports and drawings in {folder}")
             return 0
         if args.command == "build":
             only = None
             if args.only:
                 only = {n.strip() for n in args.only.split(",") if n.strip()}
-            result = run_build(
-                Path(args.design),
-                Path(args.out),
+            result = build_file(
+                args.design,
+                args.out,
                 args.units,
                 only,
                 progress=lambda line: _say(f"geomgen: {line}", flush=True),
