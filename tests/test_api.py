@@ -156,3 +156,13 @@ def test_the_layout_hinge_lines_are_the_reports(demo) -> None:
     assert aileron.chord_fractions[-1] == pytest.approx(0.72)
     assert math.dist(aileron.points[0], aileron.points[-1]) > 1.0
     assert set(layout.part_names) >= names | {"fuselage", "wing-right"}
+
+
+def test_a_design_changed_in_code_is_written_as_a_design_file(demo, tmp_path: Path) -> None:
+    """What a build or a writer runs on: the changed design as a file beside the outputs,
+    which sizes as the design in memory does."""
+    changed = demo.replace("wing.aspect_ratio", 8.2)
+    written = changed._file_in(tmp_path)
+    assert written == tmp_path / "veyra-t2.design.yaml"
+    assert geomgen.load(written).size().quantities() == changed.size().quantities()
+    assert demo._file_in(tmp_path) == DEMO  # an unchanged file design runs on its own file
