@@ -1,8 +1,9 @@
 """Command line: ``geomgen size``, ``geomgen build``, ``geomgen schema``, ``geomgen --version``.
 
-Thin on purpose: parse arguments, call the API (size, build) or the commands, print, map errors to exit codes
-(0 done, 1 geometry could not be built, a check failed or the outputs could not be written,
-2 bad input, 130 interrupted, 141 standard output was a pipe closed early).
+Thin on purpose: parse arguments, call the API (size, build) or the commands, print, map
+errors to exit codes (0 done, 1 geometry could not be built, a check failed or the outputs
+could not be written, 2 bad input, 130 interrupted, 141 standard output was a pipe closed
+early).
 """
 
 from __future__ import annotations
@@ -121,6 +122,17 @@ def _parser() -> argparse.ArgumentParser:
         metavar="X:Y[,X:Y...]",
         help="plot summary columns to sweep.png; a pair of two varied keys draws a "
         "feasibility map (each variant marked ok or by its failing key)",
+    )
+    watch = sub.add_parser(
+        "watch", help="size or build again on each save; serve report.html, reloading itself"
+    )
+    watch.add_argument("design", help="design file (YAML)")
+    watch.add_argument(
+        "--size-only", action="store_true", help="size on each save (no solids): fast"
+    )
+    watch.add_argument("--out", default="out", help="output folder (default: out)")
+    watch.add_argument(
+        "--port", type=int, default=8765, help="local port of the page (default: 8765; 0: any)"
     )
     sub.add_parser("schema", help="print the JSON Schema of a design file")
     return p
@@ -279,6 +291,19 @@ def _run(args: argparse.Namespace) -> int:
             )
             _summary(result)
             return 0
+        if args.command == "watch":
+            from geomgen.commands.watch import watch
+
+            return watch(
+                Path(args.design),
+                Path(args.out),
+                size_only=args.size_only,
+                port=args.port,
+                say=lambda line: _say(line, flush=True),
+                tell=_tell,
+                run_size=size_file,
+                run_build=build_file,
+            )
         if args.command == "model":
             span = None
             if args.span is not None:

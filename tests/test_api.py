@@ -166,3 +166,29 @@ def test_a_design_changed_in_code_is_written_as_a_design_file(demo, tmp_path: Pa
     assert written == tmp_path / "veyra-t2.design.yaml"
     assert geomgen.load(written).size().quantities() == changed.size().quantities()
     assert demo._file_in(tmp_path) == DEMO  # an unchanged file design runs on its own file
+
+
+def test_a_design_and_a_sizing_show_themselves_in_a_notebook(demo) -> None:
+    from html.parser import HTMLParser
+
+    class Cells(HTMLParser):
+        def __init__(self) -> None:
+            super().__init__()
+            self.text: list[str] = []
+            self.tags: list[str] = []
+
+        def handle_starttag(self, tag, attrs) -> None:
+            self.tags.append(tag)
+
+        def handle_data(self, data) -> None:
+            self.text.append(data)
+
+    shown = Cells()
+    shown.feed(demo._repr_html_())
+    assert "requirements.stall_speed" in shown.text and "45 kn" in shown.text  # the file's words
+    sizing = demo.size()
+    page = Cells()
+    page.feed(sizing._repr_html_())
+    assert "svg" in page.tags  # the three-view
+    area = sizing["surfaces.wing.area"]
+    assert f"{area.value:.6g} m^2" in page.text

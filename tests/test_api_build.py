@@ -90,3 +90,14 @@ def test_write_copies_each_kind(api_build, demo_build, tmp_path: Path) -> None:
     assert not (tmp_path / "a" / "report.json").exists()
     with pytest.raises(InputError, match="unknown output kind 'stls'"):
         api_build.write(tmp_path / "b", ["stls"])
+
+
+def test_a_build_shows_the_3d_view_in_a_notebook(api_build) -> None:
+    import html
+
+    shown = api_build._repr_html_()
+    assert "<iframe srcdoc=" in shown
+    page = (api_build.folder / "report.html").read_text(encoding="utf-8")
+    framed = shown[shown.index('srcdoc="') + 8 : shown.index('" style=')]
+    assert html.unescape(framed) == page  # the page itself, with its 3D view
+    assert 'id="view3d"' in page or "id='view3d'" in page
