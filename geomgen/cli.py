@@ -1,8 +1,9 @@
 """Command line: ``geomgen size``, ``geomgen build``, ``geomgen schema``, ``geomgen --version``.
 
-Thin on purpose: parse arguments, call the pipeline, print, map errors to exit codes
-(0 done, 1 geometry could not be built, a check failed or the outputs could not be written,
-2 bad input, 130 interrupted, 141 standard output was a pipe closed early).
+Thin on purpose: parse arguments, call the API (size, build) or the commands, print, map
+errors to exit codes (0 done, 1 geometry could not be built, a check failed or the outputs
+could not be written, 2 bad input, 130 interrupted, 141 standard output was a pipe closed
+early).
 """
 
 from __future__ import annotations
@@ -14,7 +15,7 @@ import sys
 from pathlib import Path
 
 from geomgen import __version__
-from geomgen.commands.pipeline import run_build, run_size
+from geomgen.api import build_file, size_file
 from geomgen.commands.workers import check_jobs, default_jobs
 from geomgen.errors import GeomgenError, InputError
 
@@ -80,6 +81,13 @@ writes in OUT/<name>-sweep/:
   <name>-vNNN/design.yaml   each variant's design file, its outputs beside it
   summary.csv               one row per variant
   sweep.png                 with --plot: the plotted column pairs""",
+    "watch": """\
+example:
+  geomgen watch examples/veyra-t2.yaml --size-only --port 8765
+
+writes in OUT/<name>/, again after each save of the design file, what `geomgen size`
+(--size-only) or `geomgen build` writes; a bad edit keeps the last good files:
+  report.html               served on http://127.0.0.1:PORT/, reloading itself""",
     "schema": """\
 example:
   geomgen schema > geomgen-design.schema.json
@@ -199,6 +207,19 @@ def _parser() -> argparse.ArgumentParser:
         metavar="X:Y[,X:Y...]",
         help="plot summary columns to sweep.png; a pair of two varied keys draws a "
         "feasibility map (each variant marked ok or by its failing key)",
+    )
+    watch = sub.add_parser(
+        "watch",
+        help="size or build again on each save; serve report.html, reloading itself",
+        **_help("watch"),
+    )
+    watch.add_argument("design", help="design file (YAML)")
+    watch.add_argument(
+        "--size-only", action="store_true", help="size on each save (no solids): fast"
+    )
+    watch.add_argument("--out", default="out", help="output folder (default: out)")
+    watch.add_argument(
+        "--port", type=int, default=8765, help="local port of the page (default: 8765; 0: any)"
     )
     sub.add_parser("schema", help="print the JSON Schema of a design file", **_help("schema"))
     return p
@@ -340,9 +361,7 @@ def _run(args: argparse.Namespace) -> int:
             )
             return 1 if swept.failed else 0
         if args.command == "size":
-            folder = run_size(
-                Path(args.design), Path(args.out), args.units, drawings=not args.no_drawings
-            )
+            folder = size_file(args.design, args.out, args.units, drawings=not args.no_drawings)
             written = (
                 "report.json and report.md (no drawings)"
                 if args.no_drawings
@@ -355,9 +374,9 @@ def _run(args: argparse.Namespace) -> int:
             only = None
             if args.only:
                 only = {n.strip() for n in args.only.split(",") if n.strip()}
-            result = run_build(
-                Path(args.design),
-                Path(args.out),
+            result = build_file(
+                args.design,
+                args.out,
                 args.units,
                 only,
                 progress=lambda line: _say(f"geomgen: {line}", flush=True),
@@ -366,6 +385,19 @@ def _run(args: argparse.Namespace) -> int:
             )
             _summary(result)
             return 0
+        if args.command == "watch":
+            from geomgen.commands.watch import watch
+
+            return watch(
+                Path(args.design),
+                Path(args.out),
+                size_only=args.size_only,
+                port=args.port,
+                say=lambda line: _say(line, flush=True),
+                tell=_tell,
+                run_size=size_file,
+                run_build=build_file,
+            )
         if args.command == "model":
             span = None
             if args.span is not None:

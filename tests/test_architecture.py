@@ -67,8 +67,14 @@ FLOORS = {
     "checks": 7,
     "printed_model": 7,
     "commands": 8,
-    "cli": 9,  # argument parsing over the commands
+    "api": 9,  # the public API over the commands
+    "cli": 10,  # argument parsing over the API and the commands
 }
+#: the package's ``__init__`` is the public face: it re-exports geomgen.api, imported lazily
+#: (inside ``__getattr__``, on first use, once the package is whole), and nothing else; its
+#: one edge is checked by its own test and left out of the floor and circle checks, which it
+#: would otherwise fail by design (every ``from geomgen import design`` passes through it)
+PUBLIC_FACE = {"geomgen.api"}
 
 
 def modules() -> dict[str, Path]:
@@ -103,7 +109,9 @@ def imports_of(name: str, path: Path) -> set[str]:
 def internal_graph() -> dict[str, set[str]]:
     """Module -> the package's own modules it imports."""
     mods = modules()
-    return {n: {m for m in imports_of(n, p) if m in mods and m != n} for n, p in mods.items()}
+    graph = {n: {m for m in imports_of(n, p) if m in mods and m != n} for n, p in mods.items()}
+    graph["geomgen"] -= PUBLIC_FACE
+    return graph
 
 
 def part_of(module: str) -> str:
@@ -189,6 +197,17 @@ def test_the_owners_do_import_their_libraries():
 @pytest.mark.parametrize("name", PURE)
 def test_pure_modules_import_no_cad_or_mesh_library(name):
     assert not imported_roots(PACKAGE / name) & set(OWNERS)
+
+
+def test_the_package_face_imports_the_api_lazily_and_nothing_else():
+    tree = ast.parse((PACKAGE / "__init__.py").read_text())
+    top = [n for n in tree.body if isinstance(n, (ast.Import, ast.ImportFrom))]
+    assert top == [], "geomgen/__init__.py imports at module level"
+    mods = modules()
+    assert {m for m in imports_of("geomgen", PACKAGE / "__init__.py") if m in mods} == {
+        "geomgen",
+        *PUBLIC_FACE,
+    }
 
 
 def test_every_module_has_a_floor():

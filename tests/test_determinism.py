@@ -168,3 +168,17 @@ def test_output_time_order_of_precedence() -> None:
     for bad in ("1.5", "yesterday", "0x10", "99999999999999999999"):
         with pytest.raises(InputError, match="SOURCE_DATE_EPOCH"):
             stamp.output_time(Dated(), {"SOURCE_DATE_EPOCH": bad})
+
+
+def test_occurrence_ids_are_renumbered_and_rewrapped() -> None:
+    """A second export in one process gets longer occurrence ids from OCCT's counter, and its
+    writer breaks the line where they push it past 72 characters: after renumbering, the
+    text is the same whatever the ids were (found building the demo twice in one process)."""
+    pytest.importorskip("cadquery")
+    from geomgen.solids.step import _numbered_occurrences
+
+    first = "#14438 = NEXT_ASSEMBLY_USAGE_OCCURRENCE('2','aileron-right','',#5,#11777\n  ,$);\n"
+    later = "#14438 = NEXT_ASSEMBLY_USAGE_OCCURRENCE('14','aileron-right','',#5,\n  #11777,$);\n"
+    assert _numbered_occurrences(first) == _numbered_occurrences(later)
+    one = _numbered_occurrences(later)
+    assert "'1','aileron-right'" in one and max(len(line) for line in one.splitlines()) <= 72

@@ -1,4 +1,5 @@
 """Stage 7, the commands: the pipeline (size, build, model) in order and into one output
-folder, diff, sweep. A thin layer over the stages; ``geomgen.cli`` parses arguments over it.
+folder, diff, sweep, watch. A thin layer over the stages; ``geomgen.cli`` parses arguments
+over it.
 
 May import: every stage."""

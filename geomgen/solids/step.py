@@ -48,16 +48,22 @@ def write_step(parts: Iterable[Part], path: Path, name: str, when: datetime | No
     Path(path).write_bytes(_numbered_occurrences(text).encode("latin-1"))
 
 
-_OCCURRENCE = re.compile(r"(NEXT_ASSEMBLY_USAGE_OCCURRENCE\(\s*)'(\d+)'")
-
-
 def _numbered_occurrences(text: str) -> str:
     """Number the assembly's part occurrences 1, 2, ... in file order: OCCT's writer takes
     these ids from a counter that lives as long as the process, so a second export in one
     process wrote '3', '4' where the first wrote '1', '2' (measured). The id is the
-    occurrence's own label (ISO 10303-44 product structure), not a reference."""
+    occurrence's own label (ISO 10303-44 product structure), not a reference. Each such
+    instance is rewrapped by :func:`_wrapped`: OCCT had broken its lines where the longer
+    ids fell, so a second export in one process differed in its line breaks (measured: the
+    demo built twice in one process, 6 bytes longer)."""
     count = iter(range(1, 1 << 30))
-    return _OCCURRENCE.sub(lambda m: f"{m.group(1)}'{next(count)}'", text)
+
+    def renumbered(m: re.Match) -> str:
+        body = re.sub(rf"({_STRING})|\s*\n\s*", lambda w: w.group(1) or "", m.group(2))
+        body = re.sub(r"^(\s*)'\d+'", lambda w: f"{w.group(1)}'{next(count)}'", body)
+        return _wrapped(f"#{m.group(1)} = NEXT_ASSEMBLY_USAGE_OCCURRENCE({body};")[:-1]
+
+    return _OCCURRENCE.sub(renumbered, text)
 
 
 # ISO 10303-21 (the STEP clear-text file): a string is '...' with '' for a quote inside; an
@@ -65,6 +71,7 @@ def _numbered_occurrences(text: str) -> str:
 _STRING = r"'(?:[^']|'')*'"
 _TOKEN = re.compile(rf"{_STRING}|#(\d+)")
 _INSTANCE = re.compile(rf"#(\d+)\s*=\s*((?:{_STRING}|[^';])*);")
+_OCCURRENCE = re.compile(rf"#(\d+) = NEXT_ASSEMBLY_USAGE_OCCURRENCE\(((?:{_STRING}|[^';])*);")
 
 
 def _stamped_header(text: str, when: datetime, name: str) -> str:
@@ -203,4 +210,16 @@ def read_step(
                 _VOLUMES.pop(shape, None)
                 v = volume(shape, eps=1e-7)
             out[part] = v
+    return out
+
+
+def read_step_shapes(path: Path) -> dict[str, cq.Shape]:
+    """Every part of a STEP assembly written by :func:`write_step`, by name (mm, aircraft
+    frame), in file order."""
+    back = cq.Assembly.importStep(str(path))
+    out = {}
+    for name, child in back.traverse():
+        if child.obj is not None and name != back.name:
+            shape = child.obj if isinstance(child.obj, cq.Shape) else child.obj.val()
+            out[name.split("/")[-1]] = shape
     return out
