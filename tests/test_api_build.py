@@ -98,6 +98,7 @@ def test_a_build_shows_the_3d_view_in_a_notebook(api_build) -> None:
     shown = api_build._repr_html_()
     assert "<iframe srcdoc=" in shown
     page = (api_build.folder / "report.html").read_text(encoding="utf-8")
-    framed = shown[shown.index('srcdoc="') + 8 : shown.index('" style=')]
+    start = shown.index('srcdoc="') + 8
+    framed = shown[start : shown.index('" style=', start)]
     assert html.unescape(framed) == page  # the page itself, with its 3D view
     assert 'id="view3d"' in page or "id='view3d'" in page
