@@ -75,7 +75,7 @@ class Watcher:
 
     def stop(self, sig: int = signal.SIGTERM) -> int:
         self.proc.send_signal(sig)
-        code = self.proc.wait(timeout=60)
+        code = self.proc.wait(timeout=180)  # a loaded CI machine: the exit took over 60 s once
         time.sleep(0.2)  # the reader threads take the last lines
         self.since(0)
         return code
