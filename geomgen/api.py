@@ -37,8 +37,14 @@ __all__ = [
     "Quantity",
     "Sizing",
     "build_file",
+    "diff_files",
+    "diff_text",
     "load",
+    "model_file",
+    "schema",
     "size_file",
+    "sweep_file",
+    "watch_file",
 ]
 
 #: what ``Build.write`` copies for each output kind (paths inside the output folder)
@@ -74,12 +80,14 @@ def build_file(
     only: Iterable[str] | None = None,
     progress: Callable[[str], None] = lambda _: None,
     fresh: bool = False,
-    jobs: int = 1,
+    jobs: int | None = 1,
 ):
     """What ``geomgen build`` does: build the design file into ``out/<name>/`` with the cache
-    in ``out/.cache``, on ``jobs`` worker processes (1: in this process; the same files
-    whatever the number); the pipeline's BuildResult (folder, parts, checks count, reuse)."""
+    in ``out/.cache``, on ``jobs`` worker processes (1: in this process; None: one per CPU;
+    the same files whatever the number; InputError on ``--jobs`` outside 1 to 64); the
+    pipeline's BuildResult (folder, parts, checks count, reuse)."""
     from geomgen.commands.pipeline import run_build
+    from geomgen.commands.workers import check_jobs, default_jobs
 
     return run_build(
         Path(design_path),
@@ -88,7 +96,115 @@ def build_file(
         None if only is None else set(only),
         progress=progress,
         fresh=fresh,
+        jobs=default_jobs() if jobs is None else check_jobs(jobs),
+    )
+
+
+def schema() -> dict[str, Any]:
+    """What ``geomgen schema`` prints: the JSON Schema of a design file."""
+    from geomgen.design import json_schema
+
+    return json_schema()
+
+
+def diff_files(old: str | Path, new: str | Path, tolerance: float | None = None) -> dict[str, Any]:
+    """What ``geomgen diff`` compares: two design files or two output folders; the result
+    (``equal``, changed quantities, moved points, changed parts, what is only in one). Numbers
+    within ``tolerance`` (relative; None: the command's default) count as equal."""
+    from geomgen.commands import diff
+
+    chosen = diff.DEFAULT_TOLERANCE if tolerance is None else tolerance
+    return diff.diff_paths(Path(old), Path(new), chosen)
+
+
+def diff_text(
+    result: Mapping[str, Any], old: str = "OLD", new: str = "NEW", form: str = "md"
+) -> str:
+    """A :func:`diff_files` result as the command prints it: ``form`` "md" (markdown) or "json"."""
+    from geomgen.commands import diff
+
+    if form == "json":
+        return diff.to_json(dict(result)) + "\n"
+    if form == "md":
+        return diff.to_markdown(dict(result), old, new)
+    raise InputError(f'must be "md" or "json" (got {form!r})', path="--format")
+
+
+def sweep_file(
+    design_path: str | Path,
+    vary: Iterable[str],
+    out: str | Path = "out",
+    build: bool = False,
+    jobs: int = 1,
+    scheduler: str | None = None,
+    plot: str | None = None,
+):
+    """What ``geomgen sweep`` does: every combination of the ``vary`` texts (``KEY=VALUES``)
+    sized (or built) into ``out/<name>-sweep/`` with a summary CSV (and a plot); the sweep's
+    result (csv_path, plot_path, passed, failed)."""
+    from geomgen.commands.sweep import run_sweep
+
+    return run_sweep(
+        Path(design_path),
+        list(vary),
+        Path(out),
+        build=build,
         jobs=jobs,
+        scheduler=scheduler,
+        plot=plot,
+    )
+
+
+def model_file(
+    design_path: str | Path,
+    out: str | Path = "out",
+    scale: str | None = None,
+    span: str | float | None = None,
+    progress: Callable[[str], None] = lambda _: None,
+):
+    """What ``geomgen model`` does: the printable wind-tunnel model into ``out/<name>-model/``
+    at ``scale`` ("1:N") or a tip-to-tip ``span`` (metres, or a text with its unit such as
+    "900 mm"; 50 mm to 5 m); the model's result (folder, scale, pieces, checks)."""
+    from geomgen.commands.model import run_model
+
+    metres = None
+    if span is not None:
+        if isinstance(span, str):
+            from geomgen.design.units import UnitParseError, parse_quantity
+
+            try:
+                metres = parse_quantity(span, "length")
+            except UnitParseError as err:
+                raise InputError(str(err), path="--span") from None
+        else:
+            metres = float(span)
+        if not 0.05 <= metres <= 5.0:
+            raise InputError(f"must be 50 mm to 5 m (got {span!r})", path="--span")
+    return run_model(Path(design_path), Path(out), scale, metres, progress=progress)
+
+
+def watch_file(
+    design_path: str | Path,
+    out: str | Path = "out",
+    size_only: bool = False,
+    port: int = 8765,
+    say: Callable[[str], None] = print,
+    tell: Callable[[str], None] = print,
+) -> int:
+    """What ``geomgen watch`` does: build (or size) the design file each time it is saved,
+    ``say`` what changed and ``tell`` errors, serve report.html on ``port``; returns the exit
+    code when interrupted."""
+    from geomgen.commands.watch import watch
+
+    return watch(
+        Path(design_path),
+        Path(out),
+        size_only=size_only,
+        port=port,
+        say=say,
+        tell=tell,
+        run_size=size_file,
+        run_build=build_file,
     )
 
 

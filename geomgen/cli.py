@@ -1,6 +1,6 @@
 """Command line: ``geomgen size``, ``geomgen build``, ``geomgen schema``, ``geomgen --version``.
 
-Thin on purpose: parse arguments, call the API (size, build) or the commands, print, map
+Thin on purpose: parse arguments, call :mod:`geomgen.api` (nothing else of the package), print, map
 errors to exit codes (0 done, 1 geometry could not be built, a check failed or the outputs
 could not be written, 2 bad input, 130 interrupted, 141 standard output was a pipe closed
 early).
@@ -12,12 +12,9 @@ import argparse
 import contextlib
 import json
 import sys
-from pathlib import Path
 
-from geomgen import __version__
-from geomgen.api import build_file, size_file
-from geomgen.commands.workers import check_jobs, default_jobs
-from geomgen.errors import GeomgenError, InputError
+from geomgen import __version__, api
+from geomgen.errors import GeomgenError
 
 
 class _Parser(argparse.ArgumentParser):
@@ -329,26 +326,20 @@ def main(argv: list[str] | None = None) -> int:
 def _run(args: argparse.Namespace) -> int:
     try:
         if args.command == "schema":
-            from geomgen.design import json_schema
-
-            _say(json.dumps(json_schema(), indent=2))
+            _say(json.dumps(api.schema(), indent=2))
             return 0
         if args.command == "diff":
-            from geomgen.commands import diff
-
-            result = diff.diff_paths(Path(args.old), Path(args.new), args.tolerance)
-            if args.format == "json":
-                _say(diff.to_json(result))
-            else:
-                _say(diff.to_markdown(result, args.old, args.new), end="")
+            result = api.diff_files(args.old, args.new, args.tolerance)
+            text = api.diff_text(result, args.old, args.new, args.format)
+            # the closing newline as a write of its own: CPython drops the error of a single
+            # long write that a closed pipe cut short, and the next write reports it (141)
+            _say(text.removesuffix("\n"), end="\n" if text.endswith("\n") else "")
             return 0 if result["equal"] else 1
         if args.command == "sweep":
-            from geomgen.commands.sweep import run_sweep
-
-            swept = run_sweep(
-                Path(args.design),
+            swept = api.sweep_file(
+                args.design,
                 args.vary,
-                Path(args.out),
+                args.out,
                 build=args.build,
                 jobs=args.jobs,
                 scheduler=args.scheduler,
@@ -361,7 +352,7 @@ def _run(args: argparse.Namespace) -> int:
             )
             return 1 if swept.failed else 0
         if args.command == "size":
-            folder = size_file(args.design, args.out, args.units, drawings=not args.no_drawings)
+            folder = api.size_file(args.design, args.out, args.units, drawings=not args.no_drawings)
             written = (
                 "report.json and report.md (no drawings)"
                 if args.no_drawings
@@ -374,48 +365,32 @@ def _run(args: argparse.Namespace) -> int:
             only = None
             if args.only:
                 only = {n.strip() for n in args.only.split(",") if n.strip()}
-            result = build_file(
+            result = api.build_file(
                 args.design,
                 args.out,
                 args.units,
                 only,
                 progress=lambda line: _say(f"geomgen: {line}", flush=True),
                 fresh=args.fresh,
-                jobs=default_jobs() if args.jobs is None else check_jobs(args.jobs),
+                jobs=args.jobs,  # None: one per CPU
             )
             _summary(result)
             return 0
         if args.command == "watch":
-            from geomgen.commands.watch import watch
-
-            return watch(
-                Path(args.design),
-                Path(args.out),
+            return api.watch_file(
+                args.design,
+                args.out,
                 size_only=args.size_only,
                 port=args.port,
                 say=lambda line: _say(line, flush=True),
                 tell=_tell,
-                run_size=size_file,
-                run_build=build_file,
             )
         if args.command == "model":
-            span = None
-            if args.span is not None:
-                from geomgen.design.units import UnitParseError, parse_quantity
-
-                try:
-                    span = parse_quantity(args.span, "length")
-                except UnitParseError as err:
-                    raise InputError(str(err), path="--span") from None
-                if not 0.05 <= span <= 5.0:
-                    raise InputError(f"must be 50 mm to 5 m (got {args.span!r})", path="--span")
-            from geomgen.commands.model import run_model  # only this command uses it
-
-            result = run_model(
-                Path(args.design),
-                Path(args.out),
+            result = api.model_file(
+                args.design,
+                args.out,
                 args.scale,
-                span,
+                args.span,
                 progress=lambda line: _say(f"geomgen: {line}", flush=True),
             )
             _say(f"\n{'piece':<34} {'volume (cm^3)':>14} {'mass (g)':>9}")

@@ -192,3 +192,33 @@ def test_a_design_and_a_sizing_show_themselves_in_a_notebook(demo) -> None:
     assert "svg" in page.tags  # the three-view
     area = sizing["surfaces.wing.area"]
     assert f"{area.value:.6g} m^2" in page.text
+
+
+def test_the_command_entry_points_give_what_the_commands_print(demo, tmp_path: Path) -> None:
+    # the CLI is a thin layer over the API (issue 21): the API's schema and diff are what the
+    # commands print. A higher aspect ratio leaves the wing area alone (the lift equation
+    # S = 2 W / (rho V^2 CL_max) holds no aspect ratio) and changes the span (b^2 = AR S)
+    code, printed, _ = _cli(["schema"])
+    assert code == 0 and json.loads(printed) == geomgen.schema()
+    wider = demo.replace("wing.aspect_ratio", 9.0)
+    old, new = tmp_path / "old.yaml", tmp_path / "new.yaml"
+    old.write_text(demo.to_yaml(), encoding="utf-8")
+    new.write_text(wider.to_yaml(), encoding="utf-8")
+    result = geomgen.diff_files(old, new)
+    assert result["equal"] is False
+    changed = {q["key"] for q in result["quantities"]}
+    assert "surfaces.wing.span" in changed and "surfaces.wing.area" not in changed
+    for form in ("md", "json"):
+        code, printed, _ = _cli(["diff", str(old), str(new), "--format", form])
+        assert code == 1 and printed == geomgen.diff_text(result, str(old), str(new), form)
+    with pytest.raises(InputError, match="--format"):
+        geomgen.diff_text(result, form="csv")
+
+
+@pytest.mark.parametrize("span", ["10 mm", "7 m", 0.01, "wide"])
+def test_model_file_refuses_a_span_like_the_command(span, tmp_path: Path) -> None:
+    # the model's span is 50 mm to 5 m tip to tip (geomgen model --help)
+    with pytest.raises(InputError) as err:
+        geomgen.model_file(DEMO, tmp_path, span=span)
+    assert err.value.path == "--span"
+    assert not any(tmp_path.iterdir())  # nothing written

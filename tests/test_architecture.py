@@ -210,6 +210,14 @@ def test_the_package_face_imports_the_api_lazily_and_nothing_else():
     }
 
 
+def test_the_command_line_goes_through_the_api_only():
+    # issue 21: "the CLI commands use the API only"; the version string and the error
+    # classes (whose exit codes the CLI maps) are the only other names it takes
+    mods = modules()
+    used = {m for m in imports_of("geomgen.cli", PACKAGE / "cli.py") if m in mods}
+    assert used == {"geomgen", "geomgen.api", "geomgen.errors"}
+
+
 def test_every_module_has_a_floor():
     assert {part_of(m) for m in modules()} <= set(FLOORS), "a new subpackage needs a floor"
 
